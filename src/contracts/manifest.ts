@@ -1,0 +1,28 @@
+import { z } from 'zod';
+import { locationId } from './ids.ts';
+import { localDate } from './primitives.ts';
+import { fallback } from './plan.ts';
+
+export const MANIFEST_SCHEMA_VERSION = 'nearcast.manifest.v1';
+
+/** Published after every plan record of a close, so a consumer knows the run is complete. */
+export const manifestSchema = z.object({
+  schemaVersion: z.literal(MANIFEST_SCHEMA_VERSION),
+  location: locationId,
+  planDate: localDate,
+  revision: z.number().int().min(1),
+  seriesCount: z.number().int().min(0),
+  /** SHA-256 (hex) over the plan records of this close in key order. */
+  checksum: z.string().regex(/^[0-9a-f]{64}$/),
+  model: z.array(
+    z.object({
+      lead: z.number().int().min(0),
+      rows: z.number().int().min(0),
+      series: z.number().int().min(0),
+      fallback: fallback.nullable(),
+      coefficients: z.array(z.object({ name: z.string(), value: z.number() })),
+    }),
+  ),
+});
+
+export type Manifest = z.infer<typeof manifestSchema>;

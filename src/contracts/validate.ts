@@ -1,0 +1,82 @@
+import type { z } from 'zod';
+import type { ErrorCode } from '../errors.ts';
+import { inputSchemas, type InputRecord, type InputSchemas, type InputType } from './records.ts';
+import { DEFAULT_INPUT_LIMITS, type InputLimits } from './primitives.ts';
+
+export interface Issue {
+  /** Dotted field path, e.g. `weeks.3.quantity`; empty for the record as a whole. */
+  readonly path: string;
+  readonly message: string;
+}
+
+export type Validation<T> =
+  | { readonly ok: true; readonly value: T }
+  | { readonly ok: false; readonly code: ErrorCode; readonly issues: readonly Issue[] };
+
+export const MAX_JSON_DEPTH = 8;
+export const MAX_RECORD_BYTES = 1_048_576; // 1 MiB
+
+/** One readable line for logs, dead-letter reasons and HTTP problem details. */
+export function describeIssues(issues: readonly Issue[]): string {
+  return issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join('; ');
+}
+
+export function jsonDepth(value: unknown, limit = MAX_JSON_DEPTH + 1): number {
+  // Iterative so a hostile record cannot blow the stack; stops counting once past the limit.
+  let max = 0;
+  const stack: Array<[unknown, number]> = [[value, 0]];
+  while (stack.length > 0) {
+    const [v, d] = stack.pop()!;
+    if (v === null || typeof v !== 'object') continue;
+    const depth = d + 1;
+    if (depth > max) max = depth;
+    if (max > limit) return max;
+    for (const child of Object.values(v as Record<string, unknown>)) stack.push([child, depth]);
+  }
+  return max;
+}
+
+function fromZod(error: z.ZodError): Issue[] {
+  return error.issues.map((i) => ({
+    path: i.path.map(String).join('.'),
+    // Messages are our own wording; zod's defaults are replaced where they would echo input.
+    message: i.code === 'invalid_type' && i.message.startsWith('Invalid input') ? `must be ${i.expected}` : i.message,
+  }));
+}
+
+export class RecordValidator {
+  private readonly schemas: InputSchemas;
+
+  constructor(limits: InputLimits = DEFAULT_INPUT_LIMITS) {
+    this.schemas = inputSchemas(limits);
+  }
+
+  /** Validates an already-parsed value. */
+  check<T extends InputType>(type: T, value: unknown): Validation<InputRecord<T>> {
+    if (jsonDepth(value) > MAX_JSON_DEPTH) {
+      return { ok: false, code: 'NEARCAST_INPUT_TOO_DEEP', issues: [{ path: '', message: `nests deeper than ${MAX_JSON_DEPTH} levels` }] };
+    }
+    if (value === null || typeof value !== 'object' || Array.isArray(value)) {
+      return { ok: false, code: 'NEARCAST_INPUT_INVALID', issues: [{ path: '', message: 'must be a JSON object' }] };
+    }
+    const parsed = this.schemas[type].safeParse(value);
+    if (parsed.success) return { ok: true, value: parsed.data as InputRecord<T> };
+    return { ok: false, code: 'NEARCAST_INPUT_INVALID', issues: fromZod(parsed.error) };
+  }
+
+  /** Validates raw bytes or text as they come off a topic, a file line or an HTTP body. */
+  parse<T extends InputType>(type: T, raw: string | Uint8Array): Validation<InputRecord<T>> {
+    const text = typeof raw === 'string' ? raw : Buffer.from(raw).toString('utf8');
+    if (Buffer.byteLength(text, 'utf8') > MAX_RECORD_BYTES) {
+      return { ok: false, code: 'NEARCAST_INPUT_TOO_LARGE', issues: [{ path: '', message: `is larger than ${MAX_RECORD_BYTES} bytes` }] };
+    }
+    let value: unknown;
+    try {
+      value = JSON.parse(text);
+    } catch {
+      // The parser's own message quotes the input; we never echo feed content into logs or dead letters.
+      return { ok: false, code: 'NEARCAST_INPUT_MALFORMED_JSON', issues: [{ path: '', message: 'is not valid JSON' }] };
+    }
+    return this.check(type, value);
+  }
+}
