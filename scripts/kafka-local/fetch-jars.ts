@@ -47,7 +47,7 @@ export async function ensureBrokerJars(): Promise<FetchResult> {
   const scratch = `${LIB_DIR}.partial-${process.pid}`;
   rmSync(scratch, { recursive: true, force: true });
   try {
-    await runMaven(['-B', '-q', '-f', POM_FILE, 'dependency:copy-dependencies', `-Dkafka.lib.dir=${scratch}`]);
+    await runMaven(['-B', '-q', '-Dstyle.color=never', '-f', POM_FILE, 'dependency:copy-dependencies', `-Dkafka.lib.dir=${scratch}`]);
     if (countJars(scratch) === 0) throw new NearcastError('NEARCAST_BROKER_PRECONDITION', ['Maven finished but copied no jars']);
     writeFileSync(path.join(scratch, MARKER), `${kafkaVersion}\n`);
     rmSync(LIB_DIR, { recursive: true, force: true });
@@ -68,14 +68,17 @@ function countJars(dir: string): number {
 
 function runMaven(args: readonly string[]): Promise<void> {
   return new Promise((resolve, reject) => {
-    const child = spawn('mvn', args, { stdio: ['ignore', 'inherit', 'inherit'] });
+    // Output is kept and shown only on failure: with -q a good run prints nothing but terminal resets.
+    const child = spawn('mvn', args, { stdio: ['ignore', 'pipe', 'pipe'] });
+    const output: Buffer[] = [];
+    child.stdout.on('data', (chunk: Buffer) => output.push(chunk));
+    child.stderr.on('data', (chunk: Buffer) => output.push(chunk));
     child.once('error', (err) => reject(preconditionError([`could not run Maven: ${err.message}`])));
-    child.once('exit', (code, signal) => {
-      if (code === 0) resolve();
-      else {
-        const how = signal ? `was stopped by ${signal}` : `exited with code ${code}`;
-        reject(preconditionError([`fetching the broker jars failed: "mvn ${args.join(' ')}" ${how} (its output is above)`]));
-      }
+    child.once('close', (code, signal) => {
+      if (code === 0) return resolve();
+      const how = signal ? `was stopped by ${signal}` : `exited with code ${code}`;
+      const tail = Buffer.concat(output).toString('utf8').trim().split('\n').slice(-30).join('\n');
+      reject(preconditionError([`fetching the broker jars failed: "mvn ${args.join(' ')}" ${how}:\n${tail}`]));
     });
   });
 }
