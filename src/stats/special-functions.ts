@@ -3,8 +3,8 @@
 // exp(k·ln μ − μ − lnΓ(k+1)) would lose seven to cancellation between terms of size 1e7.
 // Loader, C. (2000) "Fast and accurate computation of binomial probabilities" (recalled from memory).
 
-const LN_SQRT_2PI = 0.9189385332046727418;
-const LN_2PI = 1.8378770664093454836;
+const LN_SQRT_2PI = 0.5 * Math.log(2 * Math.PI);
+const LN_2PI = Math.log(2 * Math.PI);
 
 // Lanczos approximation, g = 7, n = 9 (coefficients as commonly published; recalled from memory and checked in
 // the tests against factorials and Γ(1/2) = √π). Relative error about 1e-15 for x ≥ 0.5.
@@ -19,6 +19,7 @@ export function logGamma(x: number): number {
   if (Number.isNaN(x)) return NaN;
   if (x === Infinity) return Infinity;
   if (x <= 0 && Number.isInteger(x)) return Infinity;
+  if (x === 1 || x === 2) return 0;
   if (x < 0.5) {
     // Reflection: Γ(x)Γ(1−x) = π / sin(πx).
     return Math.log(Math.PI / Math.abs(Math.sin(Math.PI * x))) - logGamma(1 - x);
@@ -77,15 +78,19 @@ export function poissonDensityRaw(x: number, m: number): number {
   return Math.exp(-stirlerr(x) - bd0(x, m)) / Math.sqrt(2 * Math.PI * x);
 }
 
-/** C(n, x)·pˣ·qⁿ⁻ˣ for real 0 ≤ x ≤ n, q = 1 − p passed separately to keep its precision. */
-export function binomialDensityRaw(x: number, n: number, p: number, q: number): number {
+/**
+ * C(x+y, x)·pˣ·qʸ for real x, y ≥ 0, with q = 1 − p passed separately to keep its precision. The two counts are
+ * passed apart (not as n and x) because n − x loses the small one's digits when the other is huge (phi → 0).
+ */
+export function binomialDensityRaw(x: number, y: number, p: number, q: number): number {
+  if (x < 0 || y < 0) return 0;
   if (p === 0) return x === 0 ? 1 : 0;
-  if (q === 0) return x === n ? 1 : 0;
-  if (x === 0) return n === 0 ? 1 : Math.exp(p < 0.1 ? n * Math.log1p(-p) : n * Math.log(q));
-  if (x === n) return Math.exp(q < 0.1 ? n * Math.log1p(-q) : n * Math.log(p));
-  if (x < 0 || x > n) return 0;
-  const lc = stirlerr(n) - stirlerr(x) - stirlerr(n - x) - bd0(x, n * p) - bd0(n - x, n * q);
-  const lf = LN_2PI + Math.log(x) + Math.log1p(-x / n);
+  if (q === 0) return y === 0 ? 1 : 0;
+  const n = x + y;
+  if (x === 0) return y === 0 ? 1 : Math.exp(p < 0.1 ? y * Math.log1p(-p) : y * Math.log(q));
+  if (y === 0) return Math.exp(q < 0.1 ? x * Math.log1p(-q) : x * Math.log(p));
+  const lc = stirlerr(n) - stirlerr(x) - stirlerr(y) - bd0(x, n * p) - bd0(y, n * q);
+  const lf = LN_2PI + Math.log(x) + Math.log(y) - Math.log(n);
   return Math.exp(lc - 0.5 * lf);
 }
 
@@ -159,7 +164,7 @@ export function regularizedBeta(x: number, y: number, a: number, b: number): Tai
 
 // xᵃ yᵇ / (a·B(a,b)) = C(a+b, a)·xᵃyᵇ · b/(a+b), in the saddle-point form.
 function betaPrefactor(x: number, y: number, a: number, b: number): number {
-  return binomialDensityRaw(a, a + b, x, y) * (b / (a + b));
+  return binomialDensityRaw(a, b, x, y) * (b / (a + b));
 }
 
 function betaContinuedFraction(x: number, a: number, b: number): number {
