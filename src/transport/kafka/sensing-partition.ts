@@ -1,0 +1,209 @@
+import { randomUUID } from 'node:crypto';
+import type { Topics } from '../../config/topics.ts';
+import type { Logger } from '../../log.ts';
+import { deadLetter } from '../../runtime/dead-letter.ts';
+import { decodeEventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
+import type { SensingStage } from '../../runtime/sensing-stage-port.ts';
+import { applyPartCounts, BARRIER_KEY, decodeChangelog, encodeChangelog, type PartCounts } from './changelog-codec.ts';
+import type { ChangelogReader } from './changelog-reader.ts';
+import { NO_CRASH_POINTS, type CrashPoints } from './crash-points.ts';
+import type { Batch, BatchContext, GroupConsumer, IncomingMessage, KafkaPort, OutgoingMessage, TransactionalProducer } from './kafka-port.ts';
+import { maxValueBytes } from './message-chunks.ts';
+import { deadLetterMessage, outputMessage } from './output-messages.ts';
+import { runTransaction } from './transaction-runner.ts';
+
+// The owner of one event-log partition in this process: its sensing stage, its transactional producer (one per
+// partition, so the id fences a zombie owner), and the restore. Every batch is one transaction; on any failure the
+// partition's state is dropped and rebuilt from the changelog, so memory never holds what Kafka did not commit.
+
+export interface PartitionDeps {
+  readonly port: KafkaPort;
+  readonly consumer: GroupConsumer;
+  readonly reader: ChangelogReader;
+  readonly topics: Topics;
+  readonly groupId: string;
+  readonly transactionalId: (partition: number) => string;
+  readonly createStage: (partition: number) => SensingStage;
+  readonly maxMessageBytes: number;
+  readonly crash: CrashPoints;
+  readonly logger: Logger;
+  readonly instanceId: string;
+  readonly eventSource: string;
+  /** Called after every committed batch (tests and metrics). */
+  readonly onCommitted?: (partition: number, nextOffset: string) => void;
+}
+
+type Status = 'restoring' | 'ready' | 'closed';
+
+const sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms));
+
+export class SensingPartition {
+  private status: Status = 'restoring';
+  private stage: SensingStage | undefined;
+  private producer: TransactionalProducer | undefined;
+  private parts: PartCounts = new Map();
+  /** Serialises batches, restores and close of this partition. */
+  private chain: Promise<void> = Promise.resolve();
+  private restoring: Promise<void> | undefined;
+  private readonly log: Logger;
+  private readonly tp: { topic: string; partition: number };
+
+  constructor(
+    readonly partition: number,
+    private readonly deps: PartitionDeps,
+  ) {
+    this.tp = { topic: deps.topics.events, partition };
+    this.log = deps.logger.child({ partition });
+  }
+
+  get ready(): boolean {
+    return this.status === 'ready';
+  }
+
+  /** Nothing is fetched for the partition until its state is restored. */
+  start(): Promise<void> {
+    this.deps.consumer.pause([this.tp]);
+    this.status = 'restoring';
+    this.restoring ??= this.restoreUntilDone().finally(() => (this.restoring = undefined));
+    return this.restoring;
+  }
+
+  /** After a rejoin that kept this partition: fetch on from the applied offset, whatever the group's offset says. */
+  reposition(): void {
+    if (this.status === 'ready' && this.stage) this.deps.consumer.seek(this.tp, this.stage.nextOffset());
+  }
+
+  handleBatch(batch: Batch, ctx: BatchContext): Promise<void> {
+    const run = this.chain.then(() => this.applyBatch(batch, ctx));
+    this.chain = run.catch(() => undefined);
+    return run;
+  }
+
+  async close(): Promise<void> {
+    this.status = 'closed';
+    const closing = this.chain.then(async () => {
+      await this.restoring?.catch(() => undefined);
+      this.stage = undefined;
+      await this.producer?.close().catch(() => undefined);
+      this.producer = undefined;
+    });
+    this.chain = closing.catch(() => undefined);
+    await closing;
+  }
+
+  private async applyBatch(batch: Batch, ctx: BatchContext): Promise<void> {
+    if (this.status !== 'ready' || !this.stage || !this.producer || ctx.isStale() || !ctx.isRunning()) return;
+    const stage = this.stage;
+    const next = BigInt(stage.nextOffset());
+    const fresh = batch.messages.filter((m) => BigInt(m.offset) >= next);
+    const last = batch.messages.at(-1);
+    if (fresh.length === 0) {
+      if (last) ctx.resolve(last.offset);
+      return;
+    }
+    const { entries, unreadable } = this.decode(fresh);
+    try {
+      const result = stage.apply(entries);
+      const nextOffset = (BigInt(fresh.at(-1)!.offset) + 1n).toString();
+      const changelog = encodeChangelog(
+        result.changelog,
+        { topic: this.deps.topics.changelog, partition: this.partition, generation: result.nextOffset, maxValueBytes: maxValueBytes(this.deps.maxMessageBytes) },
+        this.parts,
+      );
+      const messages: OutgoingMessage[] = [...result.outputs.map((o) => outputMessage(o, this.deps.topics)), ...unreadable, ...changelog.messages];
+      await runTransaction(
+        this.producer,
+        { messages, offsets: { groupId: this.deps.groupId, offsets: [{ ...this.tp, offset: nextOffset }] } },
+        { maxMessageBytes: this.deps.maxMessageBytes, crash: this.deps.crash, heartbeat: ctx.heartbeat },
+      );
+      this.deps.crash.pass('after-commit');
+      stage.commit();
+      applyPartCounts(this.parts, changelog.parts);
+      ctx.resolve(last!.offset);
+      this.deps.onCommitted?.(this.partition, stage.nextOffset());
+    } catch (err) {
+      this.log.warn({ err, firstOffset: fresh[0]!.offset }, 'batch not committed; dropping the partition state and restoring');
+      try {
+        stage.abort();
+      } catch {
+        // the state is dropped below either way
+      }
+      this.stage = undefined;
+      if ((this.status as Status) !== 'closed') void this.start();
+    }
+  }
+
+  /** An event-log record we cannot read is dead-lettered in the same transaction instead of stopping the partition. */
+  private decode(messages: readonly IncomingMessage[]): { entries: LogEntry[]; unreadable: OutgoingMessage[] } {
+    const entries: LogEntry[] = [];
+    const unreadable: OutgoingMessage[] = [];
+    for (const m of messages) {
+      try {
+        entries.push({ offset: m.offset, record: decodeEventLogRecord(m.value ?? '') });
+      } catch {
+        const source = { kind: 'topic' as const, topic: m.topic, partition: m.partition, offset: m.offset };
+        const record = deadLetter({
+          type: 'unknown',
+          code: 'NEARCAST_INPUT_MALFORMED_JSON',
+          issues: [{ path: '', message: 'is not a nearcast event-log record' }],
+          stage: 'sensing',
+          source,
+          location: m.key,
+          arrivalMs: m.timestampMs,
+          raw: m.value?.toString('utf8') ?? '',
+        });
+        unreadable.push(deadLetterMessage(record, this.deps.topics, this.deps.eventSource));
+      }
+    }
+    return { entries, unreadable };
+  }
+
+  private async restoreUntilDone(): Promise<void> {
+    for (let attempt = 1; this.status !== 'closed'; attempt++) {
+      try {
+        await this.restoreOnce();
+        return;
+      } catch (err) {
+        this.log.warn({ err, attempt }, 'restore failed; retrying');
+        await sleep(Math.min(200 * 2 ** attempt, 5_000));
+      }
+    }
+  }
+
+  private async restoreOnce(): Promise<void> {
+    const started = performance.now();
+    // A fresh producer every time: InitProducerId bumps the epoch, fencing any other holder of the id and
+    // aborting a transaction it left open, before we read what is committed.
+    await this.producer?.close().catch(() => undefined);
+    this.producer = this.deps.port.transactionalProducer(this.deps.transactionalId(this.partition));
+    await this.producer.init();
+    const barrier: OutgoingMessage = {
+      topic: this.deps.topics.changelog,
+      partition: this.partition,
+      key: BARRIER_KEY,
+      value: JSON.stringify({ by: this.deps.instanceId, nonce: randomUUID() }),
+    };
+    const [written] = await runTransaction(this.producer, { messages: [barrier] }, { maxMessageBytes: this.deps.maxMessageBytes, crash: NO_CRASH_POINTS });
+    if (!written) throw new Error('the barrier write returned no offset');
+    this.deps.crash.pass('after-barrier');
+    const records: IncomingMessage[] = [];
+    const from = await this.deps.reader.lowOffset(this.partition);
+    await this.deps.reader.read(this.partition, from, written.offset, (r) => {
+      records.push(r);
+      if (records.length === 1) this.deps.crash.pass('during-restore');
+    });
+    const decoded = decodeChangelog(records);
+    const stage = this.deps.createStage(this.partition);
+    stage.restore(decoded.entries);
+    if (this.status === 'closed') return;
+    this.stage = stage;
+    this.parts = decoded.parts;
+    this.status = 'ready';
+    this.deps.consumer.seek(this.tp, stage.nextOffset());
+    this.deps.consumer.resume([this.tp]);
+    this.log.info(
+      { nextOffset: stage.nextOffset(), changelogRecords: records.length, keys: decoded.entries.length, ms: Math.round(performance.now() - started) },
+      'partition restored',
+    );
+  }
+}
