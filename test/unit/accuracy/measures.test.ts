@@ -3,10 +3,10 @@ import { readFileSync } from 'node:fs';
 import { addError, bandCoverage, bandHit, bias, biasOf, emptyErrorSums, fva, wape, wapeOf } from '../../../src/accuracy/measures.ts';
 
 // Source for every check marked "FPP2": Hyndman & Athanasopoulos, Forecasting: Principles and Practice, 2nd ed.,
-// §3.4 and §7.1, as stored in /work/shared/reference/accuracy-measures-example.json (see its `source` fields).
+// §3.4 and §7.1, as stored in test/reference/accuracy-measures-example.json (see its `source` fields).
 // FPP2 errors are e = actual − forecast, ours forecast − actual, so ME = −bias·Σa/n; WAPE = MAE·n/Σa.
 const ref = JSON.parse(
-  readFileSync(new URL('../../../../shared/reference/accuracy-measures-example.json', import.meta.url), 'utf8'),
+  readFileSync(new URL('../../reference/accuracy-measures-example.json', import.meta.url), 'utf8'),
 ) as {
   data: { goog200: number[] };
   expected: { training_accuracy: Record<'mean' | 'naive' | 'drift', { ME: number; MAE: number; MASE: number }> };

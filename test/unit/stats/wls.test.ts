@@ -14,7 +14,7 @@ interface Certified {
 }
 
 function reference(name: string): { data: Record<string, unknown>; certified: Record<string, unknown> } {
-  return JSON.parse(readFileSync(new URL(`../../../../shared/reference/strd-${name}.json`, import.meta.url), 'utf8')) as {
+  return JSON.parse(readFileSync(new URL(`../../reference/strd-${name}.json`, import.meta.url), 'utf8')) as {
     data: Record<string, unknown>;
     certified: Record<string, unknown>;
   };
@@ -28,7 +28,7 @@ function digits(estimate: number, certified: number): number {
 
 describe('WLS against NIST StRD certified values', () => {
   it('fits Norris to at least 12 significant digits (coefficients, SDs, residual SD, R²)', () => {
-    // Source: NIST StRD "Norris", /work/shared/reference/strd-norris.json (certified to 15 digits).
+    // Source: NIST StRD "Norris", test/reference/strd-norris.json (certified to 15 digits).
     const ref = reference('norris');
     const data = ref.data as { x: number[]; y: number[] };
     const c = ref.certified as { B0: number; B1: number; sd_B0: number; sd_B1: number; residual_sd: number; r_squared: number };
@@ -42,7 +42,7 @@ describe('WLS against NIST StRD certified values', () => {
   });
 
   it('fits Longley to at least 9 significant digits on every coefficient (and its SD)', () => {
-    // Source: NIST StRD "Longley", /work/shared/reference/strd-longley.json (certified to 15 digits).
+    // Source: NIST StRD "Longley", test/reference/strd-longley.json (certified to 15 digits).
     const ref = reference('longley');
     const rows = (ref.data as { rows: number[][] }).rows;
     const c = ref.certified as unknown as Certified;
@@ -59,7 +59,7 @@ describe('WLS against NIST StRD certified values', () => {
   });
 
   it('fits the Pontius quadratic to at least 10 significant digits', () => {
-    // Source: NIST StRD "Pontius", /work/shared/reference/strd-pontius.json (certified to 15 digits).
+    // Source: NIST StRD "Pontius", test/reference/strd-pontius.json (certified to 15 digits).
     const ref = reference('pontius');
     const data = ref.data as { x: number[]; y: number[] };
     const c = ref.certified as unknown as Certified;
