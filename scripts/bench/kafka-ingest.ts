@@ -106,6 +106,7 @@ async function main(): Promise<void> {
     console.log(`  ingest parse + validation + event-log encoding alone, in memory: ${Math.round(validationMs)} ms`);
     for (const [stage, t] of Object.entries(txStats)) {
       console.log(`  ${stage} transactions: ${t.count}, ${t.messages} messages, ${(t.bytes / 1_048_576).toFixed(1)} MiB, ${Math.round(t.ms)} ms open in total`);
+      console.log(`    of which begin ${Math.round(t.beginMs)} ms, sends ${Math.round(t.sendMs)} ms, offsets ${Math.round(t.offsetsMs)} ms, commit ${Math.round(t.commitMs)} ms`);
     }
     console.log(`ratio end to end / kafkajs raw   ${(e2e / rate(RECORDS, raw)).toFixed(2)}  (target ≥ 0.5)`);
     if (kcatMs !== undefined) console.log(`ratio end to end / kcat raw      ${(e2e / rate(RECORDS, kcatMs)).toFixed(2)}`);
@@ -164,7 +165,7 @@ async function kafkajsRawRate(port: KafkaPort, topic: string): Promise<number> {
   return ms;
 }
 
-const txStats: Record<string, { count: number; messages: number; bytes: number; ms: number }> = {};
+const txStats: Record<string, { count: number; messages: number; bytes: number; ms: number; beginMs: number; sendMs: number; offsetsMs: number; commitMs: number }> = {};
 
 /** Counts and times every transaction (begin to commit) per stage, to show where the time goes. */
 function timedPort(port: KafkaPort): KafkaPort {
@@ -180,16 +181,28 @@ function timedPort(port: KafkaPort): KafkaPort {
         async begin() {
           const started = performance.now();
           const tx = await producer.begin();
-          const s = (txStats[stage] ??= { count: 0, messages: 0, bytes: 0, ms: 0 });
+          const s = (txStats[stage] ??= { count: 0, messages: 0, bytes: 0, ms: 0, beginMs: 0, sendMs: 0, offsetsMs: 0, commitMs: 0 });
+          s.beginMs += performance.now() - started;
           return {
             async send(messages) {
+              const t = performance.now();
               s.messages += messages.length;
               for (const m of messages) s.bytes += (m.value?.length ?? 0) + m.key.length;
-              return tx.send(messages);
+              try {
+                return await tx.send(messages);
+              } finally {
+                s.sendMs += performance.now() - t;
+              }
             },
-            sendOffsets: (g, o) => tx.sendOffsets(g, o),
+            async sendOffsets(g, o) {
+              const t = performance.now();
+              await tx.sendOffsets(g, o);
+              s.offsetsMs += performance.now() - t;
+            },
             async commit() {
+              const t = performance.now();
               await tx.commit();
+              s.commitMs += performance.now() - t;
               s.count++;
               s.ms += performance.now() - started;
             },

@@ -3,8 +3,8 @@
 // Unset, every check is a map lookup that finds nothing.
 
 export const CRASH_POINTS = [
-  'after-produce', // outputs and changelog sent inside the open transaction, offsets not yet added
-  'after-offsets', // consumed offsets added to the transaction, commit not yet asked
+  'after-produce', // offsets, outputs and changelog sent inside the open transaction, commit not yet asked
+  'after-offsets', // consumed offsets added to the transaction, outputs not yet sent
   'during-commit', // commit (EndTxn) sent, its answer not yet received
   'after-commit', // committed, overlay not yet merged
   'after-barrier', // restore: barrier committed, changelog not yet read

@@ -6,7 +6,7 @@ import type { SensingStage } from '../../runtime/sensing-stage-port.ts';
 import { ChangelogReader } from './changelog-reader.ts';
 import type { CrashPoints } from './crash-points.ts';
 import type { GroupConsumer, KafkaPort, TopicPartition } from './kafka-port.ts';
-import { SensingPartition } from './sensing-partition.ts';
+import { SensingPartition, type LiveClockOptions } from './sensing-partition.ts';
 
 // The sensing stage over Kafka: one group member consuming only the event log. Each assigned partition gets a
 // SensingPartition (paused until restored); a partition that moves away is closed, dropping its state and producer.
@@ -25,6 +25,8 @@ export interface SensingConsumerOptions {
   readonly logger: Logger;
   readonly eventSource: string;
   readonly onCommitted?: (partition: number, nextOffset: string) => void;
+  /** Each partition owner writes deadline closes and feed-health checks into the event log by this clock. */
+  readonly clock?: LiveClockOptions;
 }
 
 export class SensingConsumer {
@@ -103,6 +105,7 @@ export class SensingConsumer {
         instanceId: this.instanceId,
         eventSource: this.options.eventSource,
         ...(this.options.onCommitted ? { onCommitted: this.options.onCommitted } : {}),
+        ...(this.options.clock ? { clock: this.options.clock } : {}),
       });
       this.partitions.set(partition, created);
       void created.start();

@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { Topics } from '../../config/topics.ts';
 import type { Logger } from '../../log.ts';
 import { deadLetter } from '../../runtime/dead-letter.ts';
-import { decodeEventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
+import { decodeEventLogRecord, encodeEventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
 import type { SensingStage } from '../../runtime/sensing-stage-port.ts';
 import { applyPartCounts, BARRIER_KEY, decodeChangelog, encodeChangelog, type PartCounts } from './changelog-codec.ts';
 import type { ChangelogReader } from './changelog-reader.ts';
@@ -10,6 +10,7 @@ import { NO_CRASH_POINTS, type CrashPoints } from './crash-points.ts';
 import type { Batch, BatchContext, GroupConsumer, IncomingMessage, KafkaPort, OutgoingMessage, TransactionalProducer } from './kafka-port.ts';
 import { maxValueBytes } from './message-chunks.ts';
 import { deadLetterMessage, outputMessage } from './output-messages.ts';
+import { isClockKey, PartitionClock, type ClockChanges, type ClockSettings } from './partition-clock.ts';
 import { runTransaction } from './transaction-runner.ts';
 
 // The owner of one event-log partition in this process: its sensing stage, its transactional producer (one per
@@ -31,6 +32,16 @@ export interface PartitionDeps {
   readonly eventSource: string;
   /** Called after every committed batch (tests and metrics). */
   readonly onCommitted?: (partition: number, nextOffset: string) => void;
+  /** The live clock (deadline closes and feed-health checks into the event log); absent = no clock records. */
+  readonly clock?: LiveClockOptions;
+}
+
+export interface LiveClockOptions {
+  /** The wall clock, epoch ms (injected in tests). */
+  readonly now: () => number;
+  /** How often the partition's owner asks which clock records are due, ms. */
+  readonly intervalMs: number;
+  readonly settings: ClockSettings;
 }
 
 type Status = 'restoring' | 'ready' | 'closed';
@@ -45,6 +56,9 @@ export class SensingPartition {
   /** Serialises batches, restores and close of this partition. */
   private chain: Promise<void> = Promise.resolve();
   private restoring: Promise<void> | undefined;
+  private readonly clock: PartitionClock | undefined;
+  private timer: NodeJS.Timeout | undefined;
+  private ticking = false;
   private readonly log: Logger;
   private readonly tp: { topic: string; partition: number };
 
@@ -54,6 +68,7 @@ export class SensingPartition {
   ) {
     this.tp = { topic: deps.topics.events, partition };
     this.log = deps.logger.child({ partition });
+    this.clock = deps.clock ? new PartitionClock(deps.clock.settings) : undefined;
   }
 
   get ready(): boolean {
@@ -81,6 +96,8 @@ export class SensingPartition {
 
   async close(): Promise<void> {
     this.status = 'closed';
+    if (this.timer) clearInterval(this.timer);
+    this.timer = undefined;
     const closing = this.chain.then(async () => {
       await this.restoring?.catch(() => undefined);
       this.stage = undefined;
@@ -104,9 +121,10 @@ export class SensingPartition {
     const { entries, unreadable } = this.decode(fresh);
     try {
       const result = stage.apply(entries);
+      const clockChanges: ClockChanges = this.clock?.observe(entries) ?? new Map();
       const nextOffset = (BigInt(fresh.at(-1)!.offset) + 1n).toString();
       const changelog = encodeChangelog(
-        result.changelog,
+        this.clock ? [...result.changelog, ...this.clock.changelog(clockChanges)] : result.changelog,
         { topic: this.deps.topics.changelog, partition: this.partition, generation: result.nextOffset, maxValueBytes: maxValueBytes(this.deps.maxMessageBytes) },
         this.parts,
       );
@@ -119,17 +137,64 @@ export class SensingPartition {
       this.deps.crash.pass('after-commit');
       stage.commit();
       applyPartCounts(this.parts, changelog.parts);
+      this.clock?.accept(clockChanges);
       ctx.resolve(last!.offset);
       this.deps.onCommitted?.(this.partition, stage.nextOffset());
     } catch (err) {
       this.log.warn({ err, firstOffset: fresh[0]!.offset }, 'batch not committed; dropping the partition state and restoring');
-      try {
-        stage.abort();
-      } catch {
-        // the state is dropped below either way
-      }
-      this.stage = undefined;
-      if ((this.status as Status) !== 'closed') void this.start();
+      this.dropAndRestore(stage);
+    }
+  }
+
+  private dropAndRestore(stage: SensingStage): void {
+    try {
+      stage.abort();
+    } catch {
+      // the state is dropped below either way
+    }
+    this.stage = undefined;
+    if ((this.status as Status) !== 'closed') void this.start();
+  }
+
+  /** Queues one clock check behind the partition's batches (a check already waiting makes this one redundant). */
+  tickClock(): Promise<void> {
+    if (this.ticking || !this.clock) return Promise.resolve();
+    this.ticking = true;
+    const run = this.chain
+      .then(() => this.writeClockRecords())
+      .catch((err: unknown) => this.log.warn({ err }, 'clock check failed; the next one tries again'))
+      .finally(() => (this.ticking = false));
+    this.chain = run;
+    return run;
+  }
+
+  /**
+   * Writes the deadline closes and feed-health checks due now into the event log, keyed by location (the location
+   * partitioner puts them on this very partition, behind what is already there), together with the advanced
+   * cursors in the changelog, in one transaction. A crash before the commit leaves neither, so the next owner
+   * writes them once; after it, the restored cursors say they are written.
+   */
+  private async writeClockRecords(): Promise<void> {
+    const clock = this.clock;
+    const stage = this.stage;
+    if (!clock || !this.deps.clock || this.status !== 'ready' || !stage || !this.producer) return;
+    const nowMs = this.deps.clock.now();
+    const { records, changes } = clock.due(nowMs);
+    if (records.length === 0 && changes.size === 0) return;
+    const events: OutgoingMessage[] = records.map((r) => ({ topic: this.deps.topics.events, key: r.location, value: encodeEventLogRecord(r) }));
+    const changelog = encodeChangelog(
+      clock.changelog(changes),
+      { topic: this.deps.topics.changelog, partition: this.partition, generation: `clock@${nowMs}`, maxValueBytes: maxValueBytes(this.deps.maxMessageBytes) },
+      this.parts,
+    );
+    try {
+      await runTransaction(this.producer, { messages: [...events, ...changelog.messages] }, { maxMessageBytes: this.deps.maxMessageBytes, crash: this.deps.crash });
+      applyPartCounts(this.parts, changelog.parts);
+      clock.accept(changes);
+      if (records.length > 0) this.log.info({ records: records.length, deadlineCloses: records.filter((r) => r.kind === 'deadline-close').length }, 'clock records written to the event log');
+    } catch (err) {
+      this.log.warn({ err }, 'clock records not committed; dropping the partition state and restoring');
+      this.dropAndRestore(stage);
     }
   }
 
@@ -194,13 +259,20 @@ export class SensingPartition {
     });
     const decoded = decodeChangelog(records);
     const stage = this.deps.createStage(this.partition);
-    stage.restore(decoded.entries);
+    stage.restore(decoded.entries.filter((e) => !isClockKey(e.key)));
+    this.clock?.restore(decoded.entries);
     if (this.status === 'closed') return;
     this.stage = stage;
     this.parts = decoded.parts;
     this.status = 'ready';
     this.deps.consumer.seek(this.tp, stage.nextOffset());
     this.deps.consumer.resume([this.tp]);
+    if (this.deps.clock && !this.timer) {
+      this.timer = setInterval(() => void this.tickClock(), this.deps.clock.intervalMs);
+      this.timer.unref();
+    }
+    // Catch up at once with what fell due while nobody owned the partition.
+    void this.tickClock();
     this.log.info(
       { nextOffset: stage.nextOffset(), changelogRecords: records.length, keys: decoded.entries.length, ms: Math.round(performance.now() - started) },
       'partition restored',

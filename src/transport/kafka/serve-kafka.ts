@@ -31,7 +31,15 @@ export interface ServeKafkaOptions {
   readonly setUpTopics?: boolean;
   readonly port?: KafkaPort;
   readonly onSensingCommitted?: (partition: number, nextOffset: string) => void;
+  /**
+   * The live clock of the sensing stage (DESIGN section 6): every event-log partition owner writes the deadline
+   * closes and feed-health checks that fell due into the event log. Default: the wall clock, checked every 60 s.
+   * `false` writes none (a service fed a recorded log whose times are not now, e.g. tests of other behaviour).
+   */
+  readonly clock?: false | { readonly now?: () => number; readonly intervalMs?: number };
 }
+
+export const DEFAULT_CLOCK_INTERVAL_MS = 60_000;
 
 export interface KafkaService {
   readonly ingest?: IngestConsumer;
@@ -69,6 +77,10 @@ export async function serveKafka(config: Config, logger: Logger, options: ServeK
     throw new NearcastError('NEARCAST_CONFIG_INVALID', ['serveKafka: the sensing stage needs the location models (options.models)']);
   }
   const groups = kafkaGroupIds(config);
+  const clockInterval = options.clock === false ? undefined : (options.clock?.intervalMs ?? DEFAULT_CLOCK_INTERVAL_MS);
+  if (clockInterval !== undefined && !(Number.isInteger(clockInterval) && clockInterval > 0)) {
+    throw new NearcastError('NEARCAST_CONFIG_INVALID', [`serveKafka: clock.intervalMs must be a positive whole number of milliseconds, not ${clockInterval}`]);
+  }
 
   if (options.setUpTopics !== false) {
     const admin = await port.admin();
@@ -111,6 +123,15 @@ export async function serveKafka(config: Config, logger: Logger, options: ServeK
         logger,
         eventSource: settings.eventSource,
         ...(options.onSensingCommitted ? { onCommitted: options.onSensingCommitted } : {}),
+        ...(options.clock === false
+          ? {}
+          : {
+              clock: {
+                now: options.clock?.now ?? Date.now,
+                intervalMs: clockInterval!,
+                settings: { feedStallAfterMs: settings.feedStallAfterMs, defaultDayCloseDeadline: settings.defaultDayCloseDeadline },
+              },
+            }),
       })
     : undefined;
 

@@ -3,7 +3,7 @@ import type { CrashPoints } from './crash-points.ts';
 import { kafkaErrorType, type OutgoingMessage, type TransactionalProducer, type WrittenOffset } from './kafka-port.ts';
 import { chunkMessages } from './message-chunks.ts';
 
-// One short transaction: messages in size-bounded chunks, then the consumed offsets, then commit. Any failure
+// One short transaction: the consumed offsets, then messages in size-bounded chunks, then commit. Any failure
 // aborts (best effort) and surfaces as NEARCAST_KAFKA_TRANSACTION_FAILED; the caller then drops what it applied,
 // replaces the producer and restores (a kafkajs producer whose commit failed cannot be trusted to begin again).
 
@@ -27,41 +27,46 @@ const sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve,
  * kafkajs retries CONCURRENT_TRANSACTIONS on AddPartitionsToTxn but not on AddOffsetsToTxn (tulios/kafkajs#430): a
  * transaction begun right after the previous commit then fails for a reason that clears within milliseconds.
  */
-export async function retryConcurrentTransactions<T>(attempt: () => Promise<T>, retries = 10): Promise<T> {
-  let wait = 20;
+export async function retryConcurrentTransactions<T>(attempt: () => Promise<T>, retries = 200): Promise<T> {
+  // A short fixed wait rather than a doubling one: the coordinator is busy only until the previous commit's markers
+  // are written (hundreds of ms on a loaded broker), and a doubling wait overshoots that by up to as much again.
   for (let i = 0; ; i++) {
     try {
       return await attempt();
     } catch (err) {
       if (kafkaErrorType(err) !== 'CONCURRENT_TRANSACTIONS' || i >= retries) throw err;
-      await sleep(wait);
-      wait = Math.min(wait * 2, 1_000);
+      await sleep(CONCURRENT_RETRY_MS);
     }
   }
 }
 
+const CONCURRENT_RETRY_MS = 25;
+
 export async function runTransaction(producer: TransactionalProducer, work: TransactionWork, options: TransactionOptions): Promise<WrittenOffset[]> {
-  const retries = options.concurrentRetries ?? 10;
+  const retries = options.concurrentRetries ?? 200;
   let tx;
   try {
     tx = await producer.begin();
   } catch (err) {
     throw failed(producer, 'begin', err);
   }
-  let stage = 'send';
+  let stage = 'sendOffsets';
   try {
+    // Offsets first: the first request of a transaction is the one that meets CONCURRENT_TRANSACTIONS while the
+    // previous commit completes, and ours retries it every 25 ms, where kafkajs's own retry of a send starts at
+    // 200 ms and doubles. The order inside a transaction changes nothing about what commits.
+    if (work.offsets && work.offsets.offsets.length > 0) {
+      const { groupId, offsets } = work.offsets;
+      await retryConcurrentTransactions(() => tx.sendOffsets(groupId, offsets), retries);
+    }
+    options.crash.pass('after-offsets');
+    stage = 'send';
     const written: WrittenOffset[] = [];
     for (const chunk of chunkMessages(work.messages, options.maxMessageBytes)) {
       written.push(...(await retryConcurrentTransactions(() => tx.send(chunk), retries)));
       await options.heartbeat?.();
     }
     options.crash.pass('after-produce');
-    if (work.offsets && work.offsets.offsets.length > 0) {
-      stage = 'sendOffsets';
-      const { groupId, offsets } = work.offsets;
-      await retryConcurrentTransactions(() => tx.sendOffsets(groupId, offsets), retries);
-    }
-    options.crash.pass('after-offsets');
     stage = 'commit';
     options.crash.passSoon('during-commit', 3);
     await tx.commit();

@@ -13,7 +13,9 @@ export function inputMessages(config: Config, inputs: readonly RawInput[]): Outg
 }
 
 export async function startPipeline(config: Config, port: KafkaPort, models: LocationModelFactory): Promise<KafkaService> {
-  return serveKafka(config, testLogger(config), { models, handleSignals: false, setUpTopics: false, port });
+  // These tests replay a recorded history within minutes: wall-clock deadline closes and feed checks would not belong
+  // to it (today's deadline would close every day since the history's last). live-clock.test.ts covers the clock.
+  return serveKafka(config, testLogger(config), { models, handleSignals: false, setUpTopics: false, port, clock: false });
 }
 
 export async function waitIngested(port: KafkaPort, config: Config, roles: readonly RawInput['role'][]): Promise<void> {

@@ -1,0 +1,335 @@
+import { dayNumber } from '../calendar/index.ts';
+import { emptyScorecard, recordWeek, summarise, weeklyErrors, type ScorecardState } from '../accuracy/scorecard.ts';
+import { emptySelfCheck, evaluateSelfCheck, isFallbackActive, type SelfCheckState } from '../accuracy/self-check.ts';
+import type { Config } from '../config/config.ts';
+import type { Location } from '../contracts/location.ts';
+import type { Plan } from '../contracts/plan.ts';
+import { applyCommand, checkFeed, DEFAULT_MONITORING_SETTINGS, initialMonitorState, monitorDay, restoreMonitorState, type MonitoringSettings, type MonitorState } from '../monitoring/index.ts';
+import {
+  applyBaselineVersion,
+  applyDayClosed,
+  applyLocationMaster,
+  applyOrderLine,
+  applyShipment,
+  createLocationState,
+  pruneLocationState,
+  restoreLocationState,
+  senseLocation,
+  sensingSettings,
+  snapshotLocationState,
+  type ApplyOutcome as SensingOutcome,
+  type LocationState,
+  type MonitoringInput,
+  type SensingSettings,
+} from '../sensing/index.ts';
+import { monitoringDayInput } from './core/monitoring-day.ts';
+import { completeWeeks, emptyLedger, noteActual, notePlans, type WeekLedger } from './core/week-ledger.ts';
+import { localDateOf } from './local-day.ts';
+import type { ApplyOutcome, ClosedDayOutputs, DayFacts, FactRecord, FeedCheckFacts, LocationModel, LocationModelFactory, SenseAsOf, SensedDay } from './location-model-port.ts';
+import type { AlertCommand } from './internal-records.ts';
+import type { AccuracySummary } from '../contracts/accuracy-summary.ts';
+
+// The runtime's binding of the pure core: sensing (state, apply, senseLocation), monitoring (monitorDay, checkFeed,
+// applyCommand) and the self-check (scorecard, evaluateSelfCheck) for one location, behind the LocationModel port.
+
+/** What a previous plan contributes to the next close (movement, plan-implied intake): its weeks' adjusted numbers. */
+type PreviousPlans = Record<string, [string, number][]>;
+
+interface CoreSnapshot {
+  sensing: unknown;
+  monitor: MonitorState;
+  previous: PreviousPlans;
+  ledger: WeekLedger;
+  scorecard: ScorecardState;
+  selfCheck: SelfCheckState;
+  /** Last closed plan date, and order lines for already closed days applied since (late data for monitoring). */
+  lastClosed: string | null;
+  late: Record<string, { date: string; quantity: number }[]>;
+}
+
+interface CoreSensedDay extends SensedDay {
+  readonly monitoringInputs?: readonly MonitoringInput[];
+}
+
+export interface CoreSettings {
+  readonly sensing: SensingSettings;
+  readonly monitoring: MonitoringSettings;
+}
+
+function outcome(o: SensingOutcome): ApplyOutcome {
+  return o.status === 'rejected' ? { status: 'rejected', code: o.code, message: o.message, path: o.path } : { status: o.status };
+}
+
+function toPlans(location: string, prev: PreviousPlans): Plan[] {
+  // senseLocation reads only item and leads[].weekStart/adjusted of the previous plans; keeping just those keeps the
+  // snapshot small (a full plan with its explanation is a few kilobytes per series).
+  return Object.entries(prev).map(([item, leads]) => ({ location, item, leads: leads.map(([weekStart, adjusted]) => ({ weekStart, adjusted })) }) as unknown as Plan);
+}
+
+/** Keys of the per-series parts: the sensing rows (bulky, change with facts), the close-time state (small). */
+const S = 's:';
+const C = 'c:';
+
+class CoreLocationModel implements LocationModel {
+  /** Parts changed since the last snapshotParts(); `null` = every part of that kind. */
+  private dirtyS: Set<string> | null = null;
+  private dirtyC: Set<string> | null = null;
+  /** Parts written so far, to tombstone the ones that disappear (pruned series). */
+  private writtenS = new Set<string>();
+  private writtenC = new Set<string>();
+
+  constructor(
+    private sensing: LocationState,
+    private s: Omit<CoreSnapshot, 'sensing'>,
+    private readonly settings: CoreSettings,
+    restoredParts = false,
+  ) {
+    if (restoredParts) {
+      this.dirtyS = new Set();
+      this.dirtyC = new Set();
+      this.writtenS = new Set(sensing.series.keys());
+      this.writtenC = new Set(this.closeItems());
+    }
+  }
+
+  private touchS(item: string): void {
+    this.dirtyS?.add(item);
+  }
+
+  private closeItems(): string[] {
+    return [...new Set([...Object.keys(this.s.monitor.series), ...Object.keys(this.s.previous), ...Object.keys(this.s.ledger.series)])];
+  }
+
+  setMaster(location: Location): void {
+    applyLocationMaster(this.sensing, location);
+  }
+
+  apply(r: FactRecord): ApplyOutcome {
+    const customers = this.sensing.customers.length;
+    const result = this.applyToSensing(r);
+    if (result.status !== 'rejected' && r.kind !== 'day-closed') this.touchS(r.record.item);
+    // A new customer renumbers the saved customer indices of every series.
+    if (this.sensing.customers.length !== customers) this.dirtyS = null;
+    return result;
+  }
+
+  private applyToSensing(r: FactRecord): ApplyOutcome {
+    const knownAt = { knownAt: r.arrivalMs };
+    switch (r.kind) {
+      case 'order-line': {
+        const o = outcome(applyOrderLine(this.sensing, r.record, knownAt));
+        const date = localDateOf(r.knowledgeMs, this.sensing.master.timeZone);
+        if (o.status === 'applied' && r.record.revision === 1 && this.s.lastClosed !== null && date <= this.s.lastClosed) {
+          (this.s.late[r.record.item] ??= []).push({ date, quantity: r.record.quantity ?? 0 });
+        }
+        return o;
+      }
+      case 'shipment':
+        return outcome(applyShipment(this.sensing, r.record, knownAt));
+      case 'baseline-version':
+        return outcome(applyBaselineVersion(this.sensing, r.record, knownAt));
+      case 'day-closed':
+        return outcome(applyDayClosed(this.sensing, r.record));
+    }
+  }
+
+  private fallbacks(): number[] {
+    const leads: number[] = [];
+    for (let L = 0; L <= this.settings.sensing.maxLead; L++) if (isFallbackActive(this.s.selfCheck, this.sensing.location, L)) leads.push(L);
+    return leads;
+  }
+
+  sense(asOf: SenseAsOf): CoreSensedDay {
+    const result = senseLocation(this.sensing, { planDate: asOf.planDate, knownAt: asOf.knowledgeMs }, this.settings.sensing, {
+      selfCheckFallbacks: this.fallbacks(),
+      previousPlans: toPlans(this.sensing.location, this.s.previous),
+    });
+    return { plans: result.plans, model: result.model, monitoringInputs: result.monitoringInputs };
+  }
+
+  published(day: CoreSensedDay): void {
+    const mean = new Map((day.monitoringInputs ?? []).map((m) => [m.item, m.meanPerDay]));
+    for (const item of Object.keys(this.s.previous)) this.dirtyC?.add(item);
+    this.s.previous = Object.fromEntries(day.plans.map((p) => [p.item, p.leads.map((l) => [l.weekStart, l.adjusted] as [string, number])]));
+    for (const p of day.plans) {
+      noteActual(this.s.ledger, p, mean.get(p.item));
+      this.dirtyC?.add(p.item);
+    }
+  }
+
+  closeDay(day: CoreSensedDay, facts: DayFacts): ClosedDayOutputs {
+    const location = this.sensing.location;
+    const week = day.plans[0]?.leads[0]?.weekStart ?? this.s.ledger.lastWeek ?? facts.planDate;
+    const completed = completeWeeks(this.s.ledger, week);
+    const accuracy: AccuracySummary[] = [];
+    for (const c of completed) {
+      for (const [lead, series] of [...c.byLead].sort((a, b) => a[0] - b[0])) {
+        this.s.scorecard = recordWeek(this.s.scorecard, { location, lead, weekStart: c.weekStart, series }).state;
+        const weeks = weeklyErrors(this.s.scorecard, location, lead, c.weekStart);
+        this.s.selfCheck = evaluateSelfCheck(this.s.selfCheck, { location, lead, throughWeek: c.weekStart, weeks }).state;
+      }
+      if (c.byLead.size > 0) accuracy.push(...summarise(this.s.scorecard, { location, throughWeek: c.weekStart, selfCheck: this.s.selfCheck }));
+    }
+    const input = monitoringDayInput({
+      master: this.sensing.master,
+      plans: day.plans,
+      model: day.model,
+      inputs: day.monitoringInputs ?? [],
+      facts,
+      completed,
+      monitoredLead: this.settings.monitoring.replan.lead,
+      late: new Map(Object.entries(this.s.late)),
+    });
+    const result = monitorDay(this.s.monitor, input, this.settings.monitoring);
+    this.s.monitor = result.state;
+    notePlans(this.s.ledger, day.plans, new Map((day.monitoringInputs ?? []).map((m) => [m.item, m.meanPerDay])));
+    this.s.lastClosed = facts.planDate;
+    this.s.late = {};
+    // Monitoring updates every series it watches at each close.
+    this.dirtyC = null;
+    if (completed.length > 0) {
+      // Old rows leave the state once a week; that rewrites every series' saved rows.
+      pruneLocationState(this.sensing, dayNumber(facts.planDate));
+      this.dirtyS = null;
+    }
+    return { alerts: result.alerts, replan: result.replan ?? [], accuracy };
+  }
+
+  feedCheck(check: FeedCheckFacts) {
+    const m = this.sensing.master;
+    const result = checkFeed(
+      this.s.monitor,
+      { location: m.location, atMs: check.atMs, timeZone: m.timeZone, lastRecordMs: check.lastRecordMs, isBusinessDay: check.isBusinessDay, ...(m.businessHours ? { businessHours: m.businessHours } : {}) },
+      this.settings.monitoring,
+    );
+    this.s.monitor = result.state;
+    return { alerts: result.alerts };
+  }
+
+  command(c: AlertCommand) {
+    const result = applyCommand(
+      this.s.monitor,
+      { commandId: c.commandId, alertId: c.alertId, action: c.action, atMs: c.atMs, ...(c.until ? { until: c.until } : {}), ...(c.by ? { by: c.by } : {}) },
+      this.settings.monitoring,
+    );
+    this.s.monitor = result.state;
+    if (result.refused) return { alerts: result.alerts, refused: result.refused };
+    return { alerts: result.alerts };
+  }
+
+  snapshot(): CoreSnapshot {
+    return { sensing: snapshotLocationState(this.sensing), ...this.s };
+  }
+
+  snapshotParts(): { base: unknown; parts: ReadonlyMap<string, unknown> } {
+    const parts = new Map<string, unknown>();
+    const sItems = this.dirtyS === null ? [...this.sensing.series.keys()] : [...this.dirtyS].filter((i) => this.sensing.series.has(i));
+    const chosen = new Map(sItems.map((i) => [i, this.sensing.series.get(i)!]));
+    for (const snap of snapshotLocationState({ ...this.sensing, series: chosen }).series) parts.set(`${S}${snap.item}`, snap);
+    for (const item of this.writtenS) if (!this.sensing.series.has(item)) parts.set(`${S}${item}`, null);
+    this.writtenS = new Set(this.sensing.series.keys());
+
+    const closeItems = this.closeItems();
+    for (const item of this.dirtyC === null ? closeItems : [...this.dirtyC]) {
+      const m = this.s.monitor.series[item];
+      const p = this.s.previous[item];
+      const l = this.s.ledger.series[item];
+      parts.set(`${C}${item}`, m === undefined && p === undefined && l === undefined ? null : { m: m ?? null, p: p ?? null, l: l ?? null });
+    }
+    const current = new Set(closeItems);
+    for (const item of this.writtenC) if (!current.has(item)) parts.set(`${C}${item}`, null);
+    this.writtenC = current;
+    this.dirtyS = new Set();
+    this.dirtyC = new Set();
+
+    const base = {
+      sensing: snapshotLocationState({ ...this.sensing, series: new Map() }),
+      monitor: { ...this.s.monitor, series: {} },
+      // Monitoring walks its series in insertion order; a restore keeps that order.
+      monitorOrder: Object.keys(this.s.monitor.series),
+      ledgerWeek: this.s.ledger.lastWeek,
+      scorecard: this.s.scorecard,
+      selfCheck: this.s.selfCheck,
+      lastClosed: this.s.lastClosed,
+      late: this.s.late,
+    };
+    return { base, parts };
+  }
+}
+
+interface PartedBase {
+  sensing: { series: unknown[] } & Record<string, unknown>;
+  monitor: MonitorState;
+  monitorOrder: string[];
+  ledgerWeek: string | null;
+  scorecard: ScorecardState;
+  selfCheck: SelfCheckState;
+  lastClosed: string | null;
+  late: Record<string, { date: string; quantity: number }[]>;
+}
+
+type ClosePart = { m: MonitorState['series'][string] | null; p: [string, number][] | null; l: WeekLedger['series'][string] | null };
+
+export function createCoreModelsFrom(settings: CoreSettings): LocationModelFactory {
+  return {
+    create: (location) =>
+      new CoreLocationModel(
+        createLocationState(location, settings.sensing),
+        { monitor: initialMonitorState(location.location), previous: {}, ledger: emptyLedger(), scorecard: emptyScorecard(), selfCheck: emptySelfCheck(), lastClosed: null, late: {} },
+        settings,
+      ),
+    restore: (snapshot) => {
+      const snap = snapshot as CoreSnapshot;
+      // Same key order as create(): a restored location snapshots to the same bytes as one never restored.
+      return new CoreLocationModel(
+        restoreLocationState(snap.sensing),
+        {
+          monitor: restoreMonitorState(snap.monitor),
+          previous: snap.previous,
+          ledger: snap.ledger,
+          scorecard: snap.scorecard,
+          selfCheck: snap.selfCheck,
+          lastClosed: snap.lastClosed,
+          late: snap.late,
+        },
+        settings,
+      );
+    },
+    restoreParts: (baseValue, parts) => {
+      const base = baseValue as PartedBase;
+      const series = [...parts].filter(([k, v]) => k.startsWith(S) && v !== null).map(([, v]) => v as { item: string });
+      series.sort((a, b) => (a.item < b.item ? -1 : a.item > b.item ? 1 : 0));
+      const close = new Map([...parts].filter(([k, v]) => k.startsWith(C) && v !== null).map(([k, v]) => [k.slice(C.length), v as ClosePart]));
+      const monitorSeries: MonitorState['series'] = {};
+      for (const item of [...base.monitorOrder, ...[...close.keys()].sort()]) {
+        const m = close.get(item)?.m;
+        if (m && !(item in monitorSeries)) monitorSeries[item] = m;
+      }
+      const previous: PreviousPlans = {};
+      const ledger: WeekLedger = { series: {}, lastWeek: base.ledgerWeek };
+      for (const [item, c] of [...close].sort((a, b) => (a[0] < b[0] ? -1 : 1))) {
+        if (c.p) previous[item] = c.p;
+        if (c.l) ledger.series[item] = c.l;
+      }
+      return new CoreLocationModel(
+        restoreLocationState({ ...base.sensing, series }),
+        {
+          monitor: restoreMonitorState({ ...base.monitor, series: monitorSeries }),
+          previous,
+          ledger,
+          scorecard: base.scorecard,
+          selfCheck: base.selfCheck,
+          lastClosed: base.lastClosed,
+          late: base.late,
+        },
+        settings,
+        true,
+      );
+    },
+  };
+}
+
+/** The core engine with the deployment's settings (demand basis from the configuration). */
+export function createCoreModels(config: Pick<Config, 'demandBasis'>): LocationModelFactory {
+  return createCoreModelsFrom({ sensing: sensingSettings({ demandBasis: config.demandBasis }), monitoring: DEFAULT_MONITORING_SETTINGS });
+}

@@ -1,0 +1,104 @@
+import { addToDispersionPool, dispersionByBand, emptyDispersionPool } from '../stats/dispersion.ts';
+import type { VolumeBand } from '../stats/volume-band.ts';
+import { solveWls } from '../stats/wls.ts';
+import { FEATURE_COUNT, FEATURE_NAMES, FEATURE_PRIOR } from './features.ts';
+import type { RecomputeContext } from './recompute-context.ts';
+import type { TrainingRows } from './training-rows.ts';
+
+/** Columns of the evidence-gated location and series level terms. */
+const GATED_TERMS = new Set([1, 2]);
+import { weightedQuantile } from './weighted-quantile.ts';
+
+/** The fitted model of one location and lead, with what the apply step and the explanation need. */
+export interface LeadModel {
+  readonly lead: number;
+  /** False when the location had too few training rows: the lead falls back to the baseline (location-unfit). */
+  readonly fitted: boolean;
+  readonly coefficients: Float64Array;
+  readonly standardErrors: number[] | null;
+  readonly rows: number;
+  readonly series: number;
+  readonly weightedR2: number | null;
+  /** Bounds the target ratios were winsorised to. */
+  readonly winsor: readonly [number, number];
+  /** Share of booked quantity expected to survive at this lead. */
+  readonly survival: number;
+  /** Dispersion φ of the not-yet-certain part of a week, per volume band (Var = μ + φμ²). */
+  readonly dispersion: Record<VolumeBand, number>;
+}
+
+/**
+ * Fits y − 1 = Σ β·x by weighted least squares (QR on scaled columns, no intercept: with every term at 0 the plan
+ * is the baseline), winsorised targets, and a ridge prior toward FEATURE_PRIOR worth `ridgeWeeks` weeks of the
+ * location's training weight.
+ */
+export function fitLeadModel(rows: TrainingRows, survival: number, ctx: RecomputeContext): LeadModel {
+  const s = ctx.settings;
+  let fitRows = 0;
+  for (let r = 0; r < rows.n; r++) if (rows.weight[r]! > 0) fitRows++;
+  const fitted = fitRows >= s.minRows;
+  const lo = fitted ? weightedQuantile(rows.y, rows.weight, s.winsorLower) : 0;
+  const hi = fitted ? weightedQuantile(rows.y, rows.weight, s.winsorUpper) : 0;
+  const y = new Float64Array(rows.n);
+  for (let r = 0; r < rows.n; r++) y[r] = Math.min(hi, Math.max(lo, rows.y[r]!)) - 1;
+
+  let coefficients = new Float64Array(FEATURE_COUNT);
+  let standardErrors: number[] | null = null;
+  let weightedR2: number | null = null;
+  let fittedRatio = new Float64Array(rows.n).fill(1);
+  if (fitted) {
+    let sumW = 0;
+    for (let r = 0; r < rows.n; r++) sumW += rows.weight[r]!;
+    // The prior is worth `ridgeWeeks` weeks of the location's rows. For the evidence-gated level terms each
+    // pseudo-row carries a term of size ridgeReferenceTerm, not the column's own (small) spread: a gate that seldom
+    // opened leaves a handful of noisy rows, which must not overturn the prior coefficient. The order-book,
+    // week-to-date and holiday terms are measured against their own spread, so the data set them.
+    const lambda = (s.ridgeWeeks * sumW) / s.lookbackWeeks;
+    const strength = rows.columns.map((col, c) => {
+      if (c === 0) return Math.max(1e-9, (s.bookRidgeWeeks * sumW) / s.lookbackWeeks);
+      if (!GATED_TERMS.has(c)) return Math.max(1e-9, lambda);
+      let ss = 0;
+      for (let r = 0; r < rows.n; r++) ss += rows.weight[r]! * col[r]! * col[r]!;
+      const rms2 = sumW > 0 ? ss / sumW : 0;
+      return Math.max(1e-9, rms2 > 0 ? (lambda * s.ridgeReferenceTerm ** 2) / rms2 : lambda);
+    });
+    const fit = solveWls({
+      columns: rows.columns,
+      y,
+      weights: rows.weight,
+      intercept: false,
+      ridge: { strength, target: FEATURE_PRIOR },
+      names: [...FEATURE_NAMES],
+    });
+    coefficients = Float64Array.from(fit.coefficients);
+    standardErrors = fit.standardErrors;
+    weightedR2 = fit.weightedR2;
+    fittedRatio = Float64Array.from(fit.fitted, (f) => 1 + f);
+  }
+
+  // Dispersion of what was not yet certain (actual to date and surviving book are certain), per volume band, from
+  // the rows' own prediction errors: (d − μ̂)² − m has expectation φ·m² for the uncertain part m.
+  const pool = emptyDispersionPool();
+  for (let r = 0; r < rows.n; r++) {
+    const b = rows.baseline[r]!;
+    const mu = b * (rows.small[r] ? 1 : Math.max(0, fittedRatio[r]!));
+    const booked = rows.booked[r]!;
+    const certain = rows.lead === 0 ? rows.toDate[r]! + (booked - rows.toDate[r]!) * survival : booked * survival;
+    const m = mu - certain;
+    if (!(m > 0)) continue;
+    addToDispersionPool(pool, rows.perDay[r]!, Math.max(0, rows.demand[r]! - certain), m, rows.recency[r]!);
+  }
+  const dispersion = dispersionByBand(pool, { minObservations: s.dispersionMinRows, fallback: s.dispersionDefault, maxPhi: 10 });
+  return {
+    lead: rows.lead,
+    fitted,
+    coefficients,
+    standardErrors,
+    rows: fitRows,
+    series: rows.series,
+    weightedR2,
+    winsor: [lo, hi],
+    survival,
+    dispersion,
+  };
+}

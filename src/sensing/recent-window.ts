@@ -1,0 +1,118 @@
+import type { RecomputeContext } from './recompute-context.ts';
+import { at } from './series-frame.ts';
+import { rebasedWeekBaseline, type SeriesInput } from './series-input.ts';
+
+// What one series' recent complete weeks say at as-of day j (plan date − 7j), using only what was known that day:
+// weekly ratios of demand to the rebased baseline, the recency-weighted recent ratio, the typical order-book
+// build-up by lead (at the as-of weekday), and the sums the small-series exact test needs.
+
+export interface RecentWindow {
+  /** Weekly ratio by age (0 = newest complete week), NaN where the week is not usable. */
+  readonly ratios: Float64Array;
+  /** Rebased baseline by age (NaN where unusable). */
+  readonly baselines: Float64Array;
+  /** Recency-weighted ratio of sums; NaN without a usable week. */
+  readonly recentRatio: number;
+  readonly sumW: number;
+  readonly sumW2: number;
+  readonly usableWeeks: number;
+  /** Recency-weighted sums behind the typical order-book build-up: booked by the as-of weekday at each lead, the
+   * weeks' demand, and (lead 0) the demand dated up to the as-of weekday. */
+  readonly bookedSum: Float64Array;
+  readonly bookWeeksWeight: number;
+  readonly demandSum: number;
+  readonly toDateSum: number;
+  /** Small-series test: demand and rebased baseline summed over the test window. */
+  readonly testDemand: number;
+  readonly testBaseline: number;
+  /** Run-rate: recency-weighted weekly demand without first-fill orders; weeks behind it. */
+  readonly runRate: number;
+  readonly runRateWeeks: number;
+  /** Complete weeks since the series' first activity, as of that day. */
+  readonly historyWeeks: number;
+}
+
+export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: number): RecentWindow {
+  const s = ctx.settings;
+  const maxLead = s.maxLead;
+  const f = input.frame;
+  const newestAge0 = ctx.k === 6 ? 0 : 1; // the as-of week itself is complete on its last day
+  const ratios = new Float64Array(s.recentWeeks).fill(NaN);
+  const baselines = new Float64Array(s.recentWeeks).fill(NaN);
+  const bookedSum = new Float64Array(maxLead + 1);
+  let num = 0;
+  let den = 0;
+  let sumW = 0;
+  let sumW2 = 0;
+  let usable = 0;
+  let demandSum = 0;
+  let toDateSum = 0;
+  let bookW = 0;
+  let testDemand = 0;
+  let testBaseline = 0;
+  let rrNum = 0;
+  let rrDen = 0;
+  let rrWeeks = 0;
+  const asOfDay = ctx.planDay - 7 * j;
+  const first = f.firstActivityDay;
+  const windows = Math.max(s.recentWeeks, s.bookProfileWeeks, s.smallSeriesWeeks, s.runRateWeeks);
+  for (let age = 0; age < windows; age++) {
+    const m = age + newestAge0;
+    const p = ctx.H - j - m;
+    if (p < 0) break;
+    const weekDay = ctx.firstDay + 7 * p;
+    if (first === null || weekDay + 6 < first) continue; // before the series existed
+    const demand = at(f.demand, ctx, p, maxLead + m);
+    const ordinary = ctx.holidayLoss[p] === 0 && f.censored[p] === 0;
+    if (age < s.runRateWeeks && ordinary) {
+      const w = 0.5 ** (age / s.recentHalfLifeWeeks);
+      rrNum += w * Math.max(0, demand - f.firstFill[p]!);
+      rrDen += w;
+      rrWeeks++;
+    }
+    if (!ordinary) continue;
+    const b = rebasedWeekBaseline(input, p, j);
+    if (age < s.smallSeriesWeeks && b > 0) {
+      testDemand += demand;
+      testBaseline += b;
+    }
+    if (age < s.bookProfileWeeks && demand > 0) {
+      const w = 0.5 ** (age / s.halfLifeWeeks);
+      for (let L = 0; L <= maxLead; L++) {
+        const booked = L === 0 ? f.known0[p]! : at(f.book, ctx, p, maxLead - L);
+        bookedSum[L] = bookedSum[L]! + w * Math.min(booked, demand * 2);
+      }
+      toDateSum += w * f.toDate0[p]!;
+      demandSum += w * demand;
+      bookW += w;
+    }
+    if (age < s.recentWeeks && b > 0) {
+      const w = 0.5 ** (age / s.recentHalfLifeWeeks);
+      ratios[age] = demand / b;
+      baselines[age] = b;
+      num += w * demand;
+      den += w * b;
+      sumW += w;
+      sumW2 += w * w;
+      usable++;
+    }
+  }
+  const historyWeeks = first === null ? 0 : Math.max(0, Math.floor((ctx.week0 - 7 * j - first) / 7) + (ctx.k === 6 ? 1 : 0));
+  return {
+    ratios,
+    baselines,
+    recentRatio: den > 0 ? num / den : NaN,
+    sumW,
+    sumW2,
+    usableWeeks: usable,
+    bookWeeksWeight: bookW,
+    bookedSum,
+    demandSum,
+    toDateSum,
+    testDemand,
+    testBaseline,
+    runRate: rrDen > 0 ? rrNum / rrDen : NaN,
+    runRateWeeks: rrWeeks,
+    historyWeeks: asOfDay < (first ?? Infinity) ? 0 : historyWeeks,
+  };
+}

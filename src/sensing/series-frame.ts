@@ -1,0 +1,128 @@
+import { LAG_UNKNOWN, PART_FIRST_FILL, PART_LARGE, type SeriesParts } from './line-parts.ts';
+import type { RecomputeContext } from './recompute-context.ts';
+
+/**
+ * One series at one recompute: quantities per week and knowledge cut-point (see RecomputeContext), cumulative so
+ * that `at(arr, p, j)` is "what was known of week p by cut j". All sums run over parts in knowledge order, so the
+ * same records give bit-identical numbers in any arrival order.
+ */
+export interface SeriesFrame {
+  /** Demand-basis quantity (orders by requested date, or shipments by ship date), large lines excluded. */
+  readonly demand: Float64Array;
+  /** Large lines' part of the demand (orders basis). */
+  readonly demandLarge: Float64Array;
+  /** Order book by (shifted) requested date, large lines excluded, and large lines' part. */
+  readonly book: Float64Array;
+  readonly bookLarge: Float64Array;
+  /** Lead 0 at cut maxLead: known so far (actual to date + booked rest) excluding and only large lines; to date alone. */
+  readonly known0: Float64Array;
+  readonly known0Large: Float64Array;
+  readonly toDate0: Float64Array;
+  /** Final quantity of lines already booked at the cut of each lead (for survival), by week × lead. */
+  readonly survivingBooked: Float64Array;
+  /** First-fill orders' final quantity (excluded from run-rates). */
+  readonly firstFill: Float64Array;
+  /** Weeks with a censored shipment day (shipments basis). */
+  readonly censored: Uint8Array;
+  /** Final demand by day (large lines included) and order intake by order date, by frame day. */
+  readonly dayDemand: Float64Array;
+  readonly dayIntake: Float64Array;
+  /** Earliest day anything was known of the series, null when nothing was. */
+  readonly firstActivityDay: number | null;
+}
+
+export function cutStride(ctx: RecomputeContext): number {
+  return ctx.NC + 1;
+}
+
+/** Cumulative value of week position p at cut j (j = ctx.NC: everything known by the as-of instant). */
+export function at(arr: Float64Array, ctx: RecomputeContext, p: number, j: number): number {
+  return arr[p * (ctx.NC + 1) + Math.min(j, ctx.NC)]!;
+}
+
+export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesFrame {
+  const { nWeeks, NC, firstDay, nDays, k, cutoffMs } = ctx;
+  const maxLead = ctx.settings.maxLead;
+  const shipBasis = ctx.settings.demandBasis === 'shipments';
+  const S = NC + 1;
+  const book = new Float64Array(nWeeks * S);
+  const bookLarge = new Float64Array(nWeeks * S);
+  const demand = shipBasis ? new Float64Array(nWeeks * S) : book;
+  const demandLarge = shipBasis ? new Float64Array(nWeeks * S) : bookLarge;
+  const known0 = new Float64Array(nWeeks);
+  const known0Large = new Float64Array(nWeeks);
+  const toDate0 = new Float64Array(nWeeks);
+  const survivingBooked = new Float64Array(nWeeks * (maxLead + 1));
+  const firstFill = new Float64Array(nWeeks);
+  const censored = new Uint8Array(nWeeks);
+  const dayDemand = new Float64Array(nDays);
+  const dayIntake = new Float64Array(nDays);
+  const dayDue = shipBasis ? new Float64Array(nDays) : dayDemand;
+  let firstActivity: number | null = null;
+
+  const cutOf = (p: number, kd: number): number => {
+    const c0 = firstDay + 7 * p + k - 7 * maxLead;
+    if (kd <= c0) return 0;
+    const j = Math.ceil((kd - c0) / 7);
+    return j >= NC ? NC : j;
+  };
+
+  const shift = shipBasis && lagDays !== LAG_UNKNOWN ? lagDays : 0;
+  for (let i = 0; i < parts.n; i++) {
+    if (parts.knownMs[i]! > cutoffMs) break; // knowledge order: nothing later counts
+    const q = parts.quantity[i]!;
+    const kd = parts.knownDay[i]!;
+    const od = parts.orderedDay[i]! - firstDay;
+    if (od >= 0 && od < nDays) dayIntake[od] = dayIntake[od]! + q;
+    if (firstActivity === null || parts.orderedDay[i]! < firstActivity) firstActivity = Math.min(parts.orderedDay[i]!, kd);
+    const req = parts.requestedDay[i]!;
+    const rd = req - firstDay;
+    if (rd >= 0 && rd < nDays) dayDue[rd] = dayDue[rd]! + q;
+    const d = req + shift - firstDay;
+    if (d < 0 || d >= nDays) continue;
+    const p = (d / 7) | 0;
+    const large = (parts.flags[i]! & PART_LARGE) !== 0;
+    const j = cutOf(p, kd);
+    const bookArr = large ? bookLarge : book;
+    bookArr[p * S + j] = bookArr[p * S + j]! + q;
+    const knownArr = large ? known0Large : known0;
+    const c = firstDay + 7 * p + k;
+    if (kd <= c) {
+      if (!shipBasis) {
+        knownArr[p] = knownArr[p]! + q;
+        if (!large && d + firstDay <= c) toDate0[p] = toDate0[p]! + q;
+      } else if (d + firstDay > c) knownArr[p] = knownArr[p]! + q;
+    }
+    const first = parts.firstKnownDay[i]!;
+    const sb = p * (maxLead + 1);
+    for (let L = 0; L <= maxLead; L++) if (first <= c - 7 * L) survivingBooked[sb + L] = survivingBooked[sb + L]! + q;
+    if (!large && (parts.flags[i]! & PART_FIRST_FILL) !== 0) firstFill[p] = firstFill[p]! + q;
+  }
+
+  if (shipBasis) {
+    const sh = parts.shipments;
+    for (let i = 0; i < sh.n; i++) {
+      if (sh.knownMs[i]! > cutoffMs) break;
+      const q = sh.quantity[i]!;
+      const d = sh.shipDay[i]! - firstDay;
+      if (firstActivity === null || sh.shipDay[i]! < firstActivity) firstActivity = sh.shipDay[i]!;
+      if (d < 0 || d >= nDays) continue;
+      dayDemand[d] = dayDemand[d]! + q;
+      const p = (d / 7) | 0;
+      const cell = p * S + cutOf(p, sh.knownDay[i]!);
+      demand[cell] = demand[cell]! + q;
+      const c = firstDay + 7 * p + k;
+      if (sh.knownDay[i]! <= c && d + firstDay <= c) {
+        known0[p] = known0[p]! + q;
+        toDate0[p] = toDate0[p]! + q;
+      }
+    }
+    const share = ctx.settings.censorShortShare;
+    for (let d = 0; d < nDays; d++) if (dayDue[d]! > 0 && dayDemand[d]! < share * dayDue[d]!) censored[(d / 7) | 0] = 1;
+  }
+
+  for (const arr of shipBasis ? [book, bookLarge, demand, demandLarge] : [book, bookLarge]) {
+    for (let p = 0; p < nWeeks; p++) for (let j = 1; j < S; j++) arr[p * S + j] = arr[p * S + j]! + arr[p * S + j - 1]!;
+  }
+  return { demand, demandLarge, book, bookLarge, known0, known0Large, toDate0, survivingBooked, firstFill, censored, dayDemand, dayIntake, firstActivityDay: firstActivity };
+}

@@ -1,0 +1,175 @@
+import { createLocationCalendar } from '../calendar/location-calendar.ts';
+import type { Location } from '../contracts/location.ts';
+import { NearcastError } from '../errors.ts';
+import { Table } from './columns.ts';
+import type { LocationState } from './location-state.ts';
+import { createSeriesState, LINE_COLUMNS, reindexSeries, SHIPMENT_COLUMNS, type BaselineVersionEntry, type SeriesState } from './series-state.ts';
+
+// The canonical JSON form of a location state: rows in knowledge order, customers sorted, series by item. The same
+// records applied in any arrival order give the same snapshot, byte for byte.
+
+export const STATE_SCHEMA = 'nearcast.sensing-state.v1';
+
+const SAVED_LINE_COLUMNS = (({ prevSameLine: _omit, ...rest }) => rest)(LINE_COLUMNS);
+
+export interface SeriesSnapshot {
+  readonly item: string;
+  readonly lines: Record<string, number[]>;
+  readonly shipments: Record<string, number[]>;
+  readonly baselines: ReadonlyArray<{
+    readonly version: number;
+    readonly eventHash: number;
+    readonly publishedMs: number;
+    readonly knownMs: number;
+    readonly knownDay: number;
+    readonly weeks: number[];
+    readonly quantities: number[];
+  }>;
+}
+
+export interface LocationStateSnapshot {
+  readonly schema: typeof STATE_SCHEMA;
+  readonly location: string;
+  readonly master: Location;
+  readonly watermarkMs: number | null;
+  readonly retentionWeeks: number;
+  readonly tooLateWeeks: number;
+  readonly customers: string[];
+  readonly closedDays: number[];
+  readonly series: SeriesSnapshot[];
+}
+
+function order(n: number, cmp: (a: number, b: number) => number): number[] {
+  const idx = Array.from({ length: n }, (_, i) => i);
+  idx.sort(cmp);
+  return idx;
+}
+
+function columnsInOrder(table: Table<Record<string, 'f64' | 'i32'>>, names: readonly string[], idx: number[], map?: Record<string, (v: number) => number>) {
+  const out: Record<string, number[]> = {};
+  for (const name of names) {
+    const col = table.cols[name]!;
+    const f = map?.[name];
+    out[name] = idx.map((i) => (f ? f(col[i]!) : col[i]!));
+  }
+  return out;
+}
+
+export function snapshotLocationState(state: LocationState): LocationStateSnapshot {
+  const sortedCustomers = [...state.customers].sort();
+  const remap = new Map(state.customers.map((c, i) => [i, sortedCustomers.indexOf(c)]));
+  const customer = (v: number) => (v < 0 ? -1 : remap.get(v)!);
+  const items = [...state.series.keys()].sort();
+  const series = items.map((item): SeriesSnapshot => {
+    const s = state.series.get(item)!;
+    const L = s.lines.cols;
+    const li = order(s.lines.length, (a, b) => L.knownMs[a]! - L.knownMs[b]! || L.lineHash[a]! - L.lineHash[b]! || L.revision[a]! - L.revision[b]!);
+    const S = s.shipments.cols;
+    const si = order(s.shipments.length, (a, b) => S.knownMs[a]! - S.knownMs[b]! || S.shipmentHash[a]! - S.shipmentHash[b]!);
+    return {
+      item,
+      lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
+      shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
+      baselines: s.baselines.map((b) => ({
+        version: b.version,
+        eventHash: b.eventHash,
+        publishedMs: b.publishedMs,
+        knownMs: b.knownMs,
+        knownDay: b.knownDay,
+        weeks: Array.from(b.weeks),
+        quantities: Array.from(b.quantities),
+      })),
+    };
+  });
+  return {
+    schema: STATE_SCHEMA,
+    location: state.location,
+    master: state.master,
+    watermarkMs: state.watermarkMs,
+    retentionWeeks: state.retentionWeeks,
+    tooLateWeeks: state.tooLateWeeks,
+    customers: sortedCustomers,
+    closedDays: [...state.closedDays].sort((a, b) => a - b),
+    series,
+  };
+}
+
+function corrupt(detail: string): never {
+  throw new NearcastError('NEARCAST_STATE_CORRUPT', [detail]);
+}
+
+function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
+  if (typeof snap?.item !== 'string') corrupt('a series has no item');
+  const s = createSeriesState(snap.item);
+  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, snap.lines);
+  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, snap.shipments);
+  if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
+  if (!shipments) corrupt(`series ${snap.item}: shipments are incomplete`);
+  for (let i = 0; i < lines.length; i++) {
+    s.lines.push({ ...rowOf(lines, i), prevSameLine: -1 } as never);
+    const c = lines.cols.customer[i]!;
+    if (c >= customers || c < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
+  }
+  for (let i = 0; i < shipments.length; i++) s.shipments.push(rowOf(shipments, i) as never);
+  if (!Array.isArray(snap.baselines)) corrupt(`series ${snap.item}: baselines must be a list`);
+  for (const b of snap.baselines) {
+    if (!Array.isArray(b?.weeks) || !Array.isArray(b.quantities) || b.weeks.length !== b.quantities.length) {
+      corrupt(`series ${snap.item}: a baseline version has mismatched weeks`);
+    }
+    for (const k of ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay'] as const) {
+      if (!Number.isFinite(b[k])) corrupt(`series ${snap.item}: baseline ${k} is not a number`);
+    }
+    const entry: BaselineVersionEntry = {
+      version: b.version,
+      eventHash: b.eventHash,
+      publishedMs: b.publishedMs,
+      knownMs: b.knownMs,
+      knownDay: b.knownDay,
+      weeks: Int32Array.from(b.weeks),
+      quantities: Float64Array.from(b.quantities),
+    };
+    s.baselines.push(entry);
+  }
+  s.baselines.sort((a, b) => a.version - b.version);
+  reindexSeries(s);
+  return s;
+}
+
+function rowOf(t: Table<Record<string, 'f64' | 'i32'>>, i: number): Record<string, number> {
+  const row: Record<string, number> = {};
+  for (const name of Object.keys(t.spec)) row[name] = t.cols[name]![i]!;
+  return row;
+}
+
+/** Rebuilds a location state from its snapshot; NEARCAST_STATE_CORRUPT says what is wrong. */
+export function restoreLocationState(snapshot: unknown): LocationState {
+  const snap = snapshot as LocationStateSnapshot;
+  if (snap === null || typeof snap !== 'object' || snap.schema !== STATE_SCHEMA) corrupt(`not a ${STATE_SCHEMA} snapshot`);
+  if (typeof snap.location !== 'string' || snap.master?.location !== snap.location) corrupt('location and master data disagree');
+  if (!Array.isArray(snap.customers) || !Array.isArray(snap.series) || !Array.isArray(snap.closedDays)) corrupt('lists are missing');
+  let calendar;
+  try {
+    calendar = createLocationCalendar(snap.master);
+  } catch {
+    corrupt('the master data does not give a valid calendar');
+  }
+  const state: LocationState = {
+    location: snap.location,
+    master: snap.master,
+    calendar,
+    watermarkMs: snap.watermarkMs ?? null,
+    retentionWeeks: snap.retentionWeeks,
+    tooLateWeeks: snap.tooLateWeeks,
+    series: new Map(),
+    customers: [...snap.customers],
+    customerIndex: new Map(snap.customers.map((c, i) => [c, i])),
+    closedDays: new Set(snap.closedDays),
+  };
+  for (const s of snap.series) state.series.set(s.item, restoreSeries(s, snap.customers.length));
+  return state;
+}
+
+/** An independent copy (the runtime applies a batch to a copy and keeps it only after its commit). */
+export function cloneLocationState(state: LocationState): LocationState {
+  return restoreLocationState(JSON.parse(JSON.stringify(snapshotLocationState(state))));
+}

@@ -1,0 +1,107 @@
+import type { AsOfSignals } from './as-of-signals.ts';
+import { weekValue } from './baseline-lookup.ts';
+import { computeFeatures, FEATURE_COUNT } from './features.ts';
+import type { RecomputeContext } from './recompute-context.ts';
+import { at } from './series-frame.ts';
+import type { SeriesInput } from './series-input.ts';
+import { capFactors, recencyWeight } from './weights.ts';
+
+/**
+ * Training rows of one lead: every sensed series × complete past week of the lookback, the target being the week's
+ * final demand over the baseline version in force at the as-of moment L weeks before (same weekday), the features
+ * as known at that moment. Weighted by recency times the inverse of the series' ratio noise, with a cap on any one
+ * series' share of the weight.
+ */
+export interface TrainingRows {
+  readonly lead: number;
+  readonly n: number;
+  /** Feature columns (FEATURE_COUNT of them) and the target ratio. */
+  readonly columns: Float64Array[];
+  readonly y: Float64Array;
+  readonly weight: Float64Array;
+  readonly seriesIndex: Int32Array;
+  readonly weeksAgo: Int32Array;
+  readonly baseline: Float64Array;
+  readonly demand: Float64Array;
+  readonly booked: Float64Array;
+  readonly toDate: Float64Array;
+  readonly perDay: Float64Array;
+  readonly recency: Float64Array;
+  /** 1 for rows of small series (weight 0 in the fit). */
+  readonly small: Uint8Array;
+  readonly series: number;
+}
+
+export function trainingRows(inputs: readonly SeriesInput[], signals: readonly AsOfSignals[], ctx: RecomputeContext, lead: number): TrainingRows {
+  const s = ctx.settings;
+  const cap = inputs.length * s.lookbackWeeks;
+  const columns = Array.from({ length: FEATURE_COUNT }, () => new Float64Array(cap));
+  const y = new Float64Array(cap);
+  const weight = new Float64Array(cap);
+  const seriesIndex = new Int32Array(cap);
+  const weeksAgo = new Int32Array(cap);
+  const baseline = new Float64Array(cap);
+  const demand = new Float64Array(cap);
+  const booked = new Float64Array(cap);
+  const toDate = new Float64Array(cap);
+  const perDay = new Float64Array(cap);
+  const recency = new Float64Array(cap);
+  const small = new Uint8Array(cap);
+  let m = 0;
+  for (let n = 1; n <= s.lookbackWeeks; n++) {
+    const j = n + lead;
+    const sig = signals[j]!;
+    const p = ctx.H - n;
+    const weekDay = ctx.firstDay + 7 * p;
+    for (let i = 0; i < inputs.length; i++) {
+      const input = inputs[i]!;
+      const si = sig.series[i];
+      if (!si || !si.ref) continue;
+      const first = input.frame.firstActivityDay;
+      if (first === null || first > weekDay || si.window.historyWeeks < s.newSeriesWeeks) continue;
+      if (input.frame.censored[p]) continue;
+      const b = weekValue(si.ref, weekDay);
+      if (b === undefined || !(b > 0)) continue;
+      const feat = computeFeatures(input, si, sig.location, ctx, p, lead, b);
+      const d = at(input.frame.demand, ctx, p, ctx.NC);
+      for (let c = 0; c < FEATURE_COUNT; c++) columns[c]![m] = feat.x[c]!;
+      y[m] = d / b;
+      // Small series stay out of the fit (weight 0) but their rows still inform the dispersion of their band.
+      recency[m] = recencyWeight(n - 1, s.halfLifeWeeks);
+      weight[m] = si.small ? 0 : recency[m]! / si.noiseVar;
+      small[m] = si.small ? 1 : 0;
+      seriesIndex[m] = i;
+      weeksAgo[m] = n;
+      baseline[m] = b;
+      demand[m] = d;
+      booked[m] = feat.booked;
+      toDate[m] = feat.toDate;
+      perDay[m] = si.perDay;
+      m++;
+    }
+  }
+  const totals = new Float64Array(inputs.length);
+  for (let r = 0; r < m; r++) totals[seriesIndex[r]!] = totals[seriesIndex[r]!]! + weight[r]!;
+  const factors = capFactors(totals, s.maxSeriesWeightShare);
+  let seriesCount = 0;
+  for (let i = 0; i < inputs.length; i++) if (totals[i]! > 0) seriesCount++;
+  for (let r = 0; r < m; r++) weight[r] = weight[r]! * factors[seriesIndex[r]!]!;
+  const cut = <T extends Float64Array | Int32Array | Uint8Array>(a: T): T => a.subarray(0, m) as T;
+  return {
+    lead,
+    n: m,
+    columns: columns.map(cut),
+    y: cut(y),
+    weight: cut(weight),
+    seriesIndex: cut(seriesIndex),
+    weeksAgo: cut(weeksAgo),
+    baseline: cut(baseline),
+    demand: cut(demand),
+    booked: cut(booked),
+    toDate: cut(toDate),
+    perDay: cut(perDay),
+    recency: cut(recency),
+    small: cut(small),
+    series: seriesCount,
+  };
+}
