@@ -23,6 +23,7 @@ import {
   type SensingSettings,
 } from '../sensing/index.ts';
 import { monitoringDayInput } from './core/monitoring-day.ts';
+import { assembleParts, C, S, type PartedBase, type PreviousPlans } from './core/parted-snapshot.ts';
 import { completeWeeks, emptyLedger, noteActual, notePlans, type WeekLedger } from './core/week-ledger.ts';
 import { localDateOf } from './local-day.ts';
 import type { ApplyOutcome, ClosedDayOutputs, DayFacts, FactRecord, FeedCheckFacts, LocationModel, LocationModelFactory, SenseAsOf, SensedDay } from './location-model-port.ts';
@@ -32,8 +33,6 @@ import type { AccuracySummary } from '../contracts/accuracy-summary.ts';
 // The runtime's binding of the pure core: sensing (state, apply, senseLocation), monitoring (monitorDay, checkFeed,
 // applyCommand) and the self-check (scorecard, evaluateSelfCheck) for one location, behind the LocationModel port.
 
-/** What a previous plan contributes to the next close (movement, plan-implied intake): its weeks' adjusted numbers. */
-type PreviousPlans = Record<string, [string, number][]>;
 
 interface CoreSnapshot {
   sensing: unknown;
@@ -66,9 +65,6 @@ function toPlans(location: string, prev: PreviousPlans): Plan[] {
   return Object.entries(prev).map(([item, leads]) => ({ location, item, leads: leads.map(([weekStart, adjusted]) => ({ weekStart, adjusted })) }) as unknown as Plan);
 }
 
-/** Keys of the per-series parts: the sensing rows (bulky, change with facts), the close-time state (small). */
-const S = 's:';
-const C = 'c:';
 
 class CoreLocationModel implements LocationModel {
   /** Parts changed since the last snapshotParts(); `null` = every part of that kind. */
@@ -257,19 +253,6 @@ class CoreLocationModel implements LocationModel {
   }
 }
 
-interface PartedBase {
-  sensing: { series: unknown[] } & Record<string, unknown>;
-  monitor: MonitorState;
-  monitorOrder: string[];
-  ledgerWeek: string | null;
-  scorecard: ScorecardState;
-  selfCheck: SelfCheckState;
-  lastClosed: string | null;
-  late: Record<string, { date: string; quantity: number }[]>;
-}
-
-type ClosePart = { m: MonitorState['series'][string] | null; p: [string, number][] | null; l: WeekLedger['series'][string] | null };
-
 export function createCoreModelsFrom(settings: CoreSettings): LocationModelFactory {
   return {
     create: (location) =>
@@ -296,32 +279,10 @@ export function createCoreModelsFrom(settings: CoreSettings): LocationModelFacto
       );
     },
     restoreParts: (baseValue, parts) => {
-      const base = baseValue as PartedBase;
-      const series = [...parts].filter(([k, v]) => k.startsWith(S) && v !== null).map(([, v]) => v as { item: string });
-      series.sort((a, b) => (a.item < b.item ? -1 : a.item > b.item ? 1 : 0));
-      const close = new Map([...parts].filter(([k, v]) => k.startsWith(C) && v !== null).map(([k, v]) => [k.slice(C.length), v as ClosePart]));
-      const monitorSeries: MonitorState['series'] = {};
-      for (const item of [...base.monitorOrder, ...[...close.keys()].sort()]) {
-        const m = close.get(item)?.m;
-        if (m && !(item in monitorSeries)) monitorSeries[item] = m;
-      }
-      const previous: PreviousPlans = {};
-      const ledger: WeekLedger = { series: {}, lastWeek: base.ledgerWeek };
-      for (const [item, c] of [...close].sort((a, b) => (a[0] < b[0] ? -1 : 1))) {
-        if (c.p) previous[item] = c.p;
-        if (c.l) ledger.series[item] = c.l;
-      }
+      const a = assembleParts(baseValue as PartedBase, parts);
       return new CoreLocationModel(
-        restoreLocationState({ ...base.sensing, series }),
-        {
-          monitor: restoreMonitorState({ ...base.monitor, series: monitorSeries }),
-          previous,
-          ledger,
-          scorecard: base.scorecard,
-          selfCheck: base.selfCheck,
-          lastClosed: base.lastClosed,
-          late: base.late,
-        },
+        restoreLocationState(a.sensing),
+        { monitor: restoreMonitorState(a.monitor), previous: a.previous, ledger: a.ledger, scorecard: a.scorecard, selfCheck: a.selfCheck, lastClosed: a.lastClosed, late: a.late },
         settings,
         true,
       );

@@ -125,7 +125,12 @@ export function applyLead(
   const guardrail: Guardrail | null = guarded.guardrail;
   if (guardrail === 'order-book-floor') notes.push(`raised to the order book expected to survive (${fmt(floor)})`);
 
-  const phi = model.dispersion[sig.band];
+  // The band's φ comes from the fit's own rows; out of sample the error is a little larger (the coefficients and
+  // φ are themselves estimates), so the uncertain part's variance is scaled by predictiveVarianceFactor:
+  // κ(m + φm²) = m + φ'm²  ⇒  φ' = κφ + (κ − 1)/m.
+  const uncertain = Math.max(0, adjusted - floor);
+  const kappa = s.predictiveVarianceFactor;
+  const phi = uncertain > 0 ? kappa * model.dispersion[sig.band] + (kappa - 1) / uncertain : model.dispersion[sig.band];
   const coefficients = FEATURE_NAMES.map((name, i) => ({ name, value: model.coefficients[i]! }));
   const explanation: Explanation = {
     method,
@@ -159,7 +164,7 @@ export function applyLead(
     adjusted,
     actualToDate,
     certain: Math.min(floor, adjusted),
-    uncertainMean: Math.max(0, adjusted - floor),
+    uncertainMean: uncertain,
     phi,
     explanation,
   };

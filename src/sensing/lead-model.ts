@@ -71,6 +71,10 @@ export function fitLeadModel(rows: TrainingRows, survival: number, ctx: Recomput
       names: [...FEATURE_NAMES],
     });
     coefficients = Float64Array.from(fit.coefficients);
+    // A booked excess carries through one for one, a little more where early bookings herald the rest of the week.
+    // Rows from the weeks right after a level shift (book up, level terms not yet caught up) would teach a much
+    // larger factor, which then multiplies booking noise once the level terms have caught up: bound it.
+    coefficients[0] = Math.min(s.bookCoefficientMax, Math.max(0, coefficients[0]!));
     standardErrors = fit.standardErrors;
     weightedR2 = fit.weightedR2;
     fittedRatio = Float64Array.from(fit.fitted, (f) => 1 + f);

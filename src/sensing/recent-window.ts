@@ -65,7 +65,7 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
     const demand = at(f.demand, ctx, p, maxLead + m);
     const ordinary = ctx.holidayLoss[p] === 0 && f.censored[p] === 0;
     if (age < s.runRateWeeks && ordinary) {
-      const w = 0.5 ** (age / s.recentHalfLifeWeeks);
+      const w = ctx.recentWeight[age]!;
       rrNum += w * Math.max(0, demand - f.firstFill[p]!);
       rrDen += w;
       rrWeeks++;
@@ -77,7 +77,7 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
       testBaseline += b;
     }
     if (age < s.bookProfileWeeks && demand > 0) {
-      const w = 0.5 ** (age / s.halfLifeWeeks);
+      const w = ctx.halfLifeWeight[age]!;
       for (let L = 0; L <= maxLead; L++) {
         const booked = L === 0 ? f.known0[p]! : at(f.book, ctx, p, maxLead - L);
         bookedSum[L] = bookedSum[L]! + w * Math.min(booked, demand * 2);
@@ -87,7 +87,7 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
       bookW += w;
     }
     if (age < s.recentWeeks && b > 0) {
-      const w = 0.5 ** (age / s.recentHalfLifeWeeks);
+      const w = ctx.recentWeight[age]!;
       ratios[age] = demand / b;
       baselines[age] = b;
       num += w * demand;

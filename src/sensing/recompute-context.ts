@@ -40,6 +40,9 @@ export interface RecomputeContext {
   readonly openWeekdays: number;
   /** Share of each frame week lost to holidays (flat over open weekdays), by frame position. */
   readonly holidayLoss: Float64Array;
+  /** Recency weights by age in weeks: recent-ratio half-life, and the training/build-up half-life. */
+  readonly recentWeight: Float64Array;
+  readonly halfLifeWeight: Float64Array;
 }
 
 export function recomputeContext(cal: LocationCalendar, asOf: AsOf, settings: SensingSettings): RecomputeContext {
@@ -80,6 +83,8 @@ export function recomputeContext(cal: LocationCalendar, asOf: AsOf, settings: Se
     nDays: 7 * nWeeks,
     openWeekdays: openWeekdayCount(cal),
     holidayLoss: loss,
+    recentWeight: Float64Array.from({ length: M + 2 }, (_, a) => 0.5 ** (a / settings.recentHalfLifeWeeks)),
+    halfLifeWeight: Float64Array.from({ length: Math.max(M, settings.lookbackWeeks) + 2 }, (_, a) => 0.5 ** (a / settings.halfLifeWeeks)),
   };
 }
 

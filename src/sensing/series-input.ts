@@ -15,7 +15,7 @@ export interface SeriesInput {
   /** Baseline of each past frame week as known when the week ended (NaN when none covered it), and its version. */
   readonly weekBase: Float64Array;
   readonly weekBaseVersion: ReadonlyArray<BaselineVersionEntry | undefined>;
-  readonly rho: Map<string, number>;
+  readonly rho: Map<BaselineVersionEntry, Map<BaselineVersionEntry, number>>;
 }
 
 export function prepareSeries(item: string, series: SeriesState, parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesInput {
@@ -42,11 +42,15 @@ export function rebasedWeekBaseline(input: SeriesInput, p: number, j: number): n
   const ref = input.ref[j];
   if (!Number.isFinite(b) || !v) return NaN;
   if (!ref || ref.version === v.version) return b;
-  const key = `${v.version}|${ref.version}`;
-  let r = input.rho.get(key);
+  let byRef = input.rho.get(v);
+  if (!byRef) {
+    byRef = new Map();
+    input.rho.set(v, byRef);
+  }
+  let r = byRef.get(ref);
   if (r === undefined) {
     r = levelRatio(v, ref);
-    input.rho.set(key, r);
+    byRef.set(ref, r);
   }
   return b * r;
 }

@@ -20,13 +20,13 @@ export const sensingSettingsSchema = z
     /** Complete weeks behind the recent-ratio feature (weeks). */
     recentWeeks: z.number().int().min(1).max(13).default(8),
     /** Half-life of the recency weight inside the recent ratio (weeks); short, so a sustained shift shows quickly. */
-    recentHalfLifeWeeks: positive.default(1),
+    recentHalfLifeWeeks: positive.default(0.5),
     /**
      * The recent level is measured over a long window (halfLifeWeeks) until the short one (recentHalfLifeWeeks)
      * differs from it by levelSwitchFrom standard errors, and over the short one alone beyond levelSwitchTo (z).
      */
-    levelSwitchFrom: z.number().min(0).default(1),
-    levelSwitchTo: z.number().positive().default(2.5),
+    levelSwitchFrom: z.number().min(0).default(1.5),
+    levelSwitchTo: z.number().positive().default(3),
     /** Complete weeks behind each series' typical order-book build-up (weeks). */
     bookProfileWeeks: z.number().int().min(1).max(26).default(6),
     /** Pseudo-demand pulling a series' build-up toward its location's (weeks of its baseline); 0 keeps each series on its own, the location's serving only a series with no week yet. */
@@ -38,7 +38,9 @@ export const sensingSettingsSchema = z
      * how much a booked excess carries through (timing noise, customers who pull orders forward) is the location's
      * own habit and its rows show it clearly.
      */
-    bookRidgeWeeks: z.number().min(0).default(1),
+    bookRidgeWeeks: z.number().min(0).default(2),
+    /** Largest coefficient the order-book term may take (ratio). */
+    bookCoefficientMax: z.number().positive().default(1.2),
     /** Size of term (share of baseline) each pseudo-row of the ridge prior carries (share). */
     ridgeReferenceTerm: positive.default(0.1),
     /** Weighted quantiles at which training ratios are winsorised (shares). */
@@ -55,15 +57,15 @@ export const sensingSettingsSchema = z
     /** Spread of a real location-wide level change, as a ratio to baseline (ratio sd). */
     locationShiftSd: positive.default(0.3),
     /** Defaults and bounds of the series spike-and-slab prior when too few series estimate it. */
-    seriesNoChangePrior: share.default(0.8),
-    seriesNoChangePriorMin: share.default(0.8),
+    seriesNoChangePrior: share.default(0.95),
+    seriesNoChangePriorMin: share.default(0.95),
     seriesShiftSd: positive.default(0.25),
     seriesShiftSdMin: positive.default(0.03),
     seriesShiftSdMax: positive.default(1),
     /** Smallest week-to-week noise assumed for a ratio (relative sd per week). */
     minRatioNoise: positive.default(0.01),
     /** Factor per week of lead applied to level (non-order-book) adjustments (share per week). */
-    leadDecayPerWeek: share.default(0.97),
+    leadDecayPerWeek: share.default(0.99),
     /** Ratio guardrails around the baseline (ratios). */
     ratioLower: z.number().min(0).max(1).default(0.5),
     ratioUpper: z.number().min(1).default(2),
@@ -99,6 +101,8 @@ export const sensingSettingsSchema = z
     leadErrorCorrelation: z.number().min(0).max(1).default(0.5),
     /** Fewest rows for a volume band to estimate its own dispersion; thinner bands borrow the nearest (rows). */
     dispersionMinRows: z.number().int().min(1).default(30),
+    /** Variance of the predictive distribution relative to the fit's in-sample residual variance (factor). */
+    predictiveVarianceFactor: z.number().min(1).default(1.1),
     /** Dispersion used before anything could be estimated (Var = mean + phi·mean²). */
     dispersionDefault: z.number().min(0).default(0.05),
     /** A plan moved when any lead changed by more than both thresholds (units per week; share). */

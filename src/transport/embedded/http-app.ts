@@ -70,7 +70,8 @@ export function buildHttpApp(options: HttpAppOptions): FastifyInstance {
     const limit = Math.min(Number(q.limit ?? config.http.maxPageSize) || config.http.maxPageSize, config.http.maxPageSize);
     const prefix = q.location ? `${q.location}|${manifests ? '#manifest' : (q.item ?? '')}` : undefined;
     let rows = runtime.store.latest(topic, { ...(q.location ? { location: q.location } : {}), ...(prefix ? { keyPrefix: prefix } : {}), ...(q.after ? { afterKey: q.after } : {}), limit: limit + 1 });
-    rows = rows.filter((r) => r.key.endsWith('|#manifest') === manifests);
+    // Re-plan entries share the alerts topic (their own CloudEvents type); the alerts listing shows alerts only.
+    rows = rows.filter((r) => r.key.endsWith('|#manifest') === manifests && !r.key.endsWith('|#replan'));
     const page = rows.slice(0, limit);
     return reply.send({ items: data(page), next: rows.length > limit ? page.at(-1)!.key : null });
   };

@@ -1,4 +1,4 @@
-import { DateTime } from 'luxon';
+import { IANAZone } from 'luxon';
 import type { BaselineVersion } from '../../../../src/contracts/baseline-version.ts';
 import type { Location } from '../../../../src/contracts/location.ts';
 import type { OrderLine } from '../../../../src/contracts/order-line.ts';
@@ -59,8 +59,34 @@ export interface Scenario {
   readonly trueMean: Map<string, number[]>;
 }
 
-const at = (date: string, hour: number, minute = 0) => DateTime.fromISO(date, { zone: ZONE }).set({ hour, minute });
-const iso = (dt: DateTime) => dt.toISO({ suppressMilliseconds: true })!;
+// Fast local-time helpers (luxon per record would dominate the run time): offsets memoised per quarter hour.
+const zone = new IANAZone(ZONE);
+const offsets = new Map<number, number>();
+function offsetMinutes(ms: number): number {
+  const q = Math.floor(ms / 900_000);
+  let o = offsets.get(q);
+  if (o === undefined) {
+    o = zone.offset(q * 900_000);
+    offsets.set(q, o);
+  }
+  return o;
+}
+/** Epoch ms of a local wall-clock time on a date (no wall time here falls in a DST gap: 06:00–17:00 only). */
+function localMs(date: string, hour: number, minute = 0): number {
+  const guess = Date.UTC(+date.slice(0, 4), +date.slice(5, 7) - 1, +date.slice(8, 10), hour, minute);
+  return guess - offsetMinutes(guess - 3_600_000) * 60_000;
+}
+function isoOf(ms: number): string {
+  const off = offsetMinutes(ms);
+  const local = new Date(ms + off * 60_000).toISOString().slice(0, 19);
+  const sign = off >= 0 ? '+' : '-';
+  const a = Math.abs(off);
+  return `${local}${sign}${String(Math.floor(a / 60)).padStart(2, '0')}:${String(a % 60).padStart(2, '0')}`;
+}
+const DAY = 86_400_000;
+function addDays(date: string, days: number): string {
+  return new Date(Date.parse(`${date}T00:00:00Z`) + days * DAY).toISOString().slice(0, 10);
+}
 
 export function masterData(location = 'DC-NORTH'): Location {
   return {
@@ -85,7 +111,6 @@ function count(rng: Rng, mean: number, noise: number | 'exact'): number {
 
 export function generateScenario(spec: ScenarioSpec): Scenario {
   const start = spec.start ?? '2026-01-05';
-  const startDt = DateTime.fromISO(start, { zone: ZONE });
   const master = masterData(spec.location);
   const loc = master.location;
   const records: ScenarioRecord[] = [];
@@ -106,8 +131,7 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
       const level = s.level ? s.level(w) : 1;
       means.push(level * s.perDay * 5);
       for (let wd = 0; wd < 5; wd++) {
-        const day = startDt.plus({ weeks: w, days: wd });
-        const date = day.toISODate()!;
+        const date = addDays(start, 7 * w + wd);
         // Early and late customers are separate customers: their daily counts are drawn independently.
         const lines: Array<{ q: number; early: boolean; customer?: string; extra?: boolean }> = [];
         for (const isEarly of [true, false]) {
@@ -125,7 +149,7 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
         for (const line of lines) {
           const r = line.extra ? extraRng : rng;
           const ahead = line.early ? 7 + (noise === 'exact' ? 3 : Math.floor(r.next() * 7)) : noise === 'exact' ? 1 : Math.floor(r.next() * 4);
-          const orderedDt = at(date, 9, 0).minus({ days: ahead }).plus({ minutes: noise === 'exact' ? orderNo % 480 : Math.floor(r.next() * 480) });
+          const orderedMs = localMs(addDays(date, -ahead), 9, 0) + 60_000 * (noise === 'exact' ? orderNo % 480 : Math.floor(r.next() * 480));
           const customer = line.customer ?? (line.early ? `C-EARLY-${1 + (orderNo % 3)}` : `C-LATE-${1 + (orderNo % 5)}`);
           orderNo++;
           const orderId = `O-${s.item}-${orderNo}`;
@@ -138,28 +162,28 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
             location: loc,
             item: s.item as OrderLine['item'],
             quantity: line.q,
-            orderedAt: iso(orderedDt),
+            orderedAt: isoOf(orderedMs),
             requestedDate: date,
             customer,
           } as OrderLine;
-          records.push({ kind: 'order-line', knownMs: orderedDt.toMillis(), record: base });
+          records.push({ kind: 'order-line', knownMs: orderedMs, record: base });
           if (s.reviseShare && r.next() < s.reviseShare) {
-            const changed = orderedDt.plus({ hours: 2 + Math.floor(r.next() * 60) });
+            const changedMs = orderedMs + 3_600_000 * (2 + Math.floor(r.next() * 60));
             const u = r.next();
             const rev: OrderLine =
               u < 0.3
-                ? { ...base, eventId: eventId(), revision: 2, op: 'cancel', quantity: undefined, changedAt: iso(changed) }
+                ? { ...base, eventId: eventId(), revision: 2, op: 'cancel', quantity: undefined, changedAt: isoOf(changedMs) }
                 : u < 0.6
-                  ? { ...base, eventId: eventId(), revision: 2, quantity: Math.max(1, Math.round(line.q * (0.7 + 0.6 * r.next()))), changedAt: iso(changed) }
-                  : { ...base, eventId: eventId(), revision: 2, requestedDate: DateTime.fromISO(date).plus({ days: u < 0.8 ? 1 : -1 }).toISODate()!, changedAt: iso(changed) };
-            records.push({ kind: 'order-line', knownMs: changed.toMillis(), record: rev });
+                  ? { ...base, eventId: eventId(), revision: 2, quantity: Math.max(1, Math.round(line.q * (0.7 + 0.6 * r.next()))), changedAt: isoOf(changedMs) }
+                  : { ...base, eventId: eventId(), revision: 2, requestedDate: addDays(date, u < 0.8 ? 1 : -1), changedAt: isoOf(changedMs) };
+            records.push({ kind: 'order-line', knownMs: changedMs, record: rev });
           }
           if (spec.withShipments) {
-            const shipDt = at(date, 15, 0);
+            const shipMs = localMs(date, 15, 0);
             records.push({
               kind: 'shipment',
-              knownMs: shipDt.toMillis(),
-              record: { eventId: eventId(), shipmentId: `S-${orderId}`, location: loc, item: s.item, quantity: line.q, shippedAt: iso(shipDt), orderId, lineId: '1' } as Shipment,
+              knownMs: shipMs,
+              record: { eventId: eventId(), shipmentId: `S-${orderId}`, location: loc, item: s.item, quantity: line.q, shippedAt: isoOf(shipMs), orderId, lineId: '1' } as Shipment,
             });
           }
         }
@@ -169,17 +193,17 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
     if (s.noBaseline) continue;
     // The planning cycle publishes a version every Monday at 06:00 covering this week and the next 12.
     for (let v = 0; v < spec.weeks + 5; v++) {
-      const pub = at(startDt.plus({ weeks: v }).toISODate()!, 6, 0);
+      const pubMs = localMs(addDays(start, 7 * v), 6, 0);
       const weeks = [];
       for (let t = v; t < v + 13; t++) {
         const lvl = s.baselineLevel ? s.baselineLevel(v, t) : 1;
         const wob = s.wobble ? 1 + s.wobble * sampleNormal(rng) : 1;
-        weeks.push({ weekStart: startDt.plus({ weeks: t }).toISODate()!, quantity: Math.max(0, s.perDay * 5 * lvl * wob) });
+        weeks.push({ weekStart: addDays(start, 7 * t), quantity: Math.max(0, s.perDay * 5 * lvl * wob) });
       }
       records.push({
         kind: 'baseline-version',
-        knownMs: pub.toMillis(),
-        record: { eventId: eventId(), location: loc, item: s.item, version: v + 1, publishedAt: iso(pub), weeks } as BaselineVersion,
+        knownMs: pubMs,
+        record: { eventId: eventId(), location: loc, item: s.item, version: v + 1, publishedAt: isoOf(pubMs), weeks } as BaselineVersion,
       });
     }
   }
@@ -189,10 +213,10 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
 
 /** Monday of generated week w, and a weekday in it (0 = Monday). */
 export function dayOf(scenario: Scenario, week: number, weekday = 0): string {
-  return DateTime.fromISO(scenario.start, { zone: ZONE }).plus({ weeks: week, days: weekday }).toISODate()!;
+  return addDays(scenario.start, 7 * week + weekday);
 }
 
 /** The close instant of a local date: 23:00 local, after the day's business. */
 export function closeOf(date: string): number {
-  return at(date, 23, 0).toMillis();
+  return localMs(date, 23, 0);
 }
