@@ -5,15 +5,15 @@
 
 export interface AdaptiveLevel {
   /** Normalised weight per age (sums to 1 over usable ages; 0 elsewhere). */
-  readonly weights: Float64Array;
+  readonly weights: number[];
   /** Share of the short window in the blend (0 … 1). */
   readonly shortShare: number;
   /** Σ weight² (the variance factor of a weighted mean of independent weeks). */
   readonly sumSquares: number;
 }
 
-function normalisedWeights(values: Float64Array, halfLife: number): Float64Array {
-  const w = new Float64Array(values.length);
+function normalisedWeights(values: ArrayLike<number>, halfLife: number): number[] {
+  const w: number[] = new Array(values.length).fill(0);
   let sum = 0;
   for (let age = 0; age < values.length; age++) {
     if (!Number.isFinite(values[age]!)) continue;
@@ -29,7 +29,7 @@ function normalisedWeights(values: Float64Array, halfLife: number): Float64Array
  * all long while the two differ by less than `switchFrom` standard errors, all short beyond `switchTo`.
  */
 export function adaptiveLevel(
-  values: Float64Array,
+  values: ArrayLike<number>,
   noiseVar: number,
   shortHalfLife: number,
   longHalfLife: number,
@@ -54,7 +54,7 @@ export function adaptiveLevel(
     const z = Math.abs(short - long) / Math.sqrt(noiseVar * diff2);
     a = Math.min(1, Math.max(0, (z - switchFrom) / (switchTo - switchFrom)));
   }
-  const weights = new Float64Array(values.length);
+  const weights: number[] = new Array(values.length).fill(0);
   let ss = 0;
   for (let age = 0; age < values.length; age++) {
     weights[age] = a * ws[age]! + (1 - a) * wl[age]!;

@@ -6,7 +6,8 @@ import { recentWindow, type RecentWindow } from './recent-window.ts';
 import type { SeriesInput } from './series-input.ts';
 import type { BaselineVersionEntry } from './series-state.ts';
 import { evidenceWeight, fitSlabPrior, type SlabPrior } from './spike-and-slab.ts';
-import { successiveDifferenceVariance, weightedMedian } from './weighted-quantile.ts';
+import { median } from '../stats/robust.ts';
+import { successiveDifferenceVariance } from './successive-differences.ts';
 import { capFactors } from './weights.ts';
 import { adaptiveLevel } from './adaptive-window.ts';
 
@@ -34,7 +35,7 @@ export interface SeriesSignal {
   readonly band: VolumeBand;
   readonly small: boolean;
   /** Typical share of the week booked by the as-of weekday, per lead (shrunk toward the location's). */
-  readonly bookShare: Float64Array;
+  readonly bookShare: number[];
   /** Typical share of the week's demand dated up to the as-of weekday (lead 0). */
   readonly toDateShare: number;
   /** Week-to-week variance of the series' ratio (relative, per week). */
@@ -138,18 +139,21 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
   // to one wild series or one wild week.
   const R = s.recentWeeks;
   const weekly = new Float64Array(R).fill(NaN);
-  const vals = new Float64Array(n);
-  const wts = new Float64Array(n);
+  const vals: number[] = [];
+  const wts: number[] = [];
   for (let age = 0; age < R; age++) {
+    vals.length = 0;
+    wts.length = 0;
     for (let i = 0; i < n; i++) {
       const r = windows[i]!.ratios[age]!;
-      const ok = !small[i] && Number.isFinite(r);
-      vals[i] = ok ? r : NaN;
-      wts[i] = ok ? windows[i]!.baselines[age]! : 0;
+      if (small[i] || !Number.isFinite(r)) continue;
+      vals.push(r);
+      wts.push(windows[i]!.baselines[age]!);
     }
+    if (vals.length === 0) continue;
     const caps = capFactors(wts, s.maxSeriesWeightShare);
-    for (let i = 0; i < n; i++) wts[i] = wts[i]! * caps[i]!;
-    weekly[age] = weightedMedian(vals, wts);
+    for (let k = 0; k < wts.length; k++) wts[k] = wts[k]! * caps[k]!;
+    weekly[age] = median(vals, wts);
   }
   // Series noise: week-to-week spread of each series' ratio relative to the location's weekly factor, pooled by
   // volume band (every series gets a stable estimate), floored.
@@ -261,7 +265,7 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
     const w = windows[i]!;
     const level = levels[i]!;
     const prior = s.bookProfilePriorWeeks * (Number.isFinite(level) ? level : Number.isFinite(w.runRate) ? w.runRate : 0);
-    const bookShare = new Float64Array(maxLead + 1);
+    const bookShare: number[] = new Array(maxLead + 1).fill(0);
     for (let L = 0; L <= maxLead; L++) {
       bookShare[L] = w.demandSum + prior > 0 ? Math.min(1, (w.bookedSum[L]! + prior * locBookShare[L]!) / (w.demandSum + prior)) : locBookShare[L]!;
     }

@@ -22,7 +22,7 @@ export const FEATURE_COUNT = FEATURE_NAMES.length;
 export const FEATURE_PRIOR: readonly number[] = [1, 1, 1, 0, 0];
 
 export interface Features {
-  readonly x: Float64Array;
+  readonly x: number[];
   readonly baseline: number;
   /** Order book for the week as known at the as-of moment, without and only large lines. */
   readonly booked: number;
@@ -59,7 +59,7 @@ export function computeFeatures(
   const decay = s.leadDecayPerWeek ** lead;
   // Expected level of the week (decayed toward the baseline with lead), and the book beyond what that level implies.
   const level = 1 + (R * q - 1) * decay;
-  const x = new Float64Array(FEATURE_COUNT);
+  const x: number[] = [0, 0, 0, 0, 0];
   x[0] = (booked - tau * baseline * level) / baseline;
   x[1] = (R - 1) * decay;
   x[2] = R * (q - 1) * decay;

@@ -7,7 +7,7 @@ import type { TrainingRows } from './training-rows.ts';
 
 /** Columns of the evidence-gated location and series level terms. */
 const GATED_TERMS = new Set([1, 2]);
-import { weightedQuantile } from './weighted-quantile.ts';
+import { weightedQuantile } from '../stats/robust.ts';
 
 /** The fitted model of one location and lead, with what the apply step and the explanation need. */
 export interface LeadModel {

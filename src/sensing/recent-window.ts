@@ -8,9 +8,9 @@ import { rebasedWeekBaseline, type SeriesInput } from './series-input.ts';
 
 export interface RecentWindow {
   /** Weekly ratio by age (0 = newest complete week), NaN where the week is not usable. */
-  readonly ratios: Float64Array;
+  readonly ratios: number[];
   /** Rebased baseline by age (NaN where unusable). */
-  readonly baselines: Float64Array;
+  readonly baselines: number[];
   /** Recency-weighted ratio of sums; NaN without a usable week. */
   readonly recentRatio: number;
   readonly sumW: number;
@@ -18,7 +18,7 @@ export interface RecentWindow {
   readonly usableWeeks: number;
   /** Recency-weighted sums behind the typical order-book build-up: booked by the as-of weekday at each lead, the
    * weeks' demand, and (lead 0) the demand dated up to the as-of weekday. */
-  readonly bookedSum: Float64Array;
+  readonly bookedSum: number[];
   readonly bookWeeksWeight: number;
   readonly demandSum: number;
   readonly toDateSum: number;
@@ -37,9 +37,10 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
   const maxLead = s.maxLead;
   const f = input.frame;
   const newestAge0 = ctx.k === 6 ? 0 : 1; // the as-of week itself is complete on its last day
-  const ratios = new Float64Array(s.recentWeeks).fill(NaN);
-  const baselines = new Float64Array(s.recentWeeks).fill(NaN);
-  const bookedSum = new Float64Array(maxLead + 1);
+  // Small plain arrays: typed arrays this size cost more to allocate and collect than they save.
+  const ratios: number[] = new Array(s.recentWeeks).fill(NaN);
+  const baselines: number[] = new Array(s.recentWeeks).fill(NaN);
+  const bookedSum: number[] = new Array(maxLead + 1).fill(0);
   let num = 0;
   let den = 0;
   let sumW = 0;

@@ -27,7 +27,7 @@ export interface SeriesFrame {
   /** Final demand by day (large lines included) and order intake by order date, by frame day. */
   readonly dayDemand: Float64Array;
   readonly dayIntake: Float64Array;
-  /** Earliest day anything was known of the series, null when nothing was. */
+  /** Earliest demand date (requested date, or ship date on the shipments basis) known, null when none. */
   readonly firstActivityDay: number | null;
 }
 
@@ -74,8 +74,8 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
     const kd = parts.knownDay[i]!;
     const od = parts.orderedDay[i]! - firstDay;
     if (od >= 0 && od < nDays) dayIntake[od] = dayIntake[od]! + q;
-    if (firstActivity === null || parts.orderedDay[i]! < firstActivity) firstActivity = Math.min(parts.orderedDay[i]!, kd);
     const req = parts.requestedDay[i]!;
+    if (!shipBasis && q > 0 && (firstActivity === null || req < firstActivity)) firstActivity = req;
     const rd = req - firstDay;
     if (rd >= 0 && rd < nDays) dayDue[rd] = dayDue[rd]! + q;
     const d = req + shift - firstDay;

@@ -17,6 +17,8 @@ describe('known-answer scenarios', () => {
     const sc = generateScenario({ seed: 20, weeks: 18, series });
     const state = stateOf(sc);
     const result = planAt(state, dayOf(sc, 16, 2)); // a Wednesday, 16 weeks of +20% behind it
+    const ratios = series.map((s) => leadOf(result, s.item, 1)).map((l) => l.adjusted / (1.2 * l.baseline!));
+    console.info(`steady +20%: lead-1 plan / (1.2 × baseline) = ${ratios.map((r) => r.toFixed(3)).join(' ')}`);
     for (const s of series) {
       const l = leadOf(result, s.item, 1);
       expect(l.adjusted / (1.2 * l.baseline!)).toBeGreaterThan(0.95);

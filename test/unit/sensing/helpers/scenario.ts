@@ -34,6 +34,10 @@ export interface SeriesSpec {
   readonly extraLines?: ReadonlyArray<readonly [number, number, number, string]>;
   /** No baseline at all. */
   readonly noBaseline?: boolean;
+  /** First week with demand (earlier weeks have none; baselines still run from week 0). */
+  readonly startWeek?: number;
+  /** Shipped share of each week's orders (shipments only), e.g. short shipments during a stock-out. */
+  readonly shipShare?: (week: number) => number;
 }
 
 export interface ScenarioSpec {
@@ -105,7 +109,7 @@ function hashText(text: string): number {
 
 function count(rng: Rng, mean: number, noise: number | 'exact'): number {
   if (noise === 'exact') return mean;
-  if (mean <= 0) return 0;
+  if (!(mean > 1e-9)) return 0;
   return noise > 0 ? sampleNegBinomial(rng, mean, noise) : samplePoisson(rng, mean);
 }
 
@@ -128,7 +132,7 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
     const means: number[] = [];
     let orderNo = 0;
     for (let w = 0; w < spec.weeks; w++) {
-      const level = s.level ? s.level(w) : 1;
+      const level = w < (s.startWeek ?? 0) ? 0 : s.level ? s.level(w) : 1;
       means.push(level * s.perDay * 5);
       for (let wd = 0; wd < 5; wd++) {
         const date = addDays(start, 7 * w + wd);
@@ -180,11 +184,14 @@ export function generateScenario(spec: ScenarioSpec): Scenario {
           }
           if (spec.withShipments) {
             const shipMs = localMs(date, 15, 0);
-            records.push({
-              kind: 'shipment',
-              knownMs: shipMs,
-              record: { eventId: eventId(), shipmentId: `S-${orderId}`, location: loc, item: s.item, quantity: line.q, shippedAt: isoOf(shipMs), orderId, lineId: '1' } as Shipment,
-            });
+            const shipped = line.q * (s.shipShare ? s.shipShare(w) : 1);
+            if (shipped > 0) {
+              records.push({
+                kind: 'shipment',
+                knownMs: shipMs,
+                record: { eventId: eventId(), shipmentId: `S-${orderId}`, location: loc, item: s.item, quantity: shipped, shippedAt: isoOf(shipMs), orderId, lineId: '1' } as Shipment,
+              });
+            }
           }
         }
       }
