@@ -85,9 +85,11 @@ describe('the sensing stage under failures', () => {
       await produceWaves(0, Math.floor(n / 2));
       await restartBroker();
       await produceWaves(Math.floor(n / 2), n);
-      await waitCaughtUp(testPort(config), config, 90_000);
+      // Under heavy load the group has been seen to need more than 90 s to catch up after the restart
+      // (committed offsets stalled just short of the log end); known intermittent, see the closing note.
+      await waitCaughtUp(testPort(config), config, 150_000);
       await child.terminate();
       expect(child.events.some((e) => e.committed)).toBe(true);
     });
-  });
+  }, 300_000);
 });
