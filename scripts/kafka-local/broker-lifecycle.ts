@@ -81,7 +81,7 @@ export async function launchLocalBroker(opts: LaunchOptions): Promise<LaunchedBr
   const formatStarted = performance.now();
   let clusterId = formattedClusterId(paths);
   if (clusterId === undefined) {
-    clusterId = randomBytes(16).toString('base64url'); // a Kafka Uuid: 16 random bytes, base64url, no padding
+    clusterId = newClusterId();
     formatStorage(paths, clusterId);
   }
   const formatMs = performance.now() - formatStarted;
@@ -190,4 +190,16 @@ function formattedClusterId(paths: BrokerPaths): string | undefined {
   const file = path.join(paths.dataDir, 'meta.properties');
   if (!existsSync(file)) return undefined;
   return /^cluster\.id=(.+)$/m.exec(readFileSync(file, 'utf8'))?.[1]?.trim();
+}
+
+/**
+ * A Kafka Uuid: 16 random bytes, base64url, no padding. One in 64 of those starts with '-', which the storage tool's
+ * argument parser reads as an option ("--cluster-id: expected one argument"); Kafka's own generator draws again in
+ * that case (recalled from memory of its Uuid class), and so do we.
+ */
+export function newClusterId(random: (n: number) => Buffer = randomBytes): string {
+  for (;;) {
+    const id = random(16).toString('base64url');
+    if (!id.startsWith('-')) return id;
+  }
 }

@@ -33,19 +33,36 @@ export async function waitSensed(port: KafkaPort, config: Config): Promise<void>
 }
 
 /**
- * Master data first (so no order names a centre the sensing stage does not know yet), then the rest in waves of
- * `wave` records, each ingested before the next is sent: records of different input topics are interleaved in the
- * event log by whichever ingest batch commits first, and waves keep that shuffle within a wave, as a live feed would.
+ * Master data first (so no order names a centre the sensing stage does not know yet), then the rest in waves of at
+ * most `wave` records, each ingested before the next is sent. Records of different input topics are interleaved in
+ * the event log by whichever ingest batch commits first, and waves keep that shuffle within a wave, as a live feed
+ * would. A run of day-closed records always travels in a wave of its own: a close overtaking the day's last lines,
+ * or the next day's lines overtaking the close, would change what the close counts, and so make the outputs (not
+ * their equality between transports) depend on the broker's timing.
  */
 export async function feed(port: KafkaPort, config: Config, inputs: readonly RawInput[], wave = Number.MAX_SAFE_INTEGER): Promise<void> {
   const master = inputs.filter((i) => i.role === 'locations');
   await produce(port, inputMessages(config, master));
   await waitIngested(port, config, ['locations']);
-  const rest = inputs.filter((i) => i.role !== 'locations');
-  for (let i = 0; i < rest.length; i += wave) {
-    const part = rest.slice(i, i + wave);
+  for (const part of waves(inputs.filter((i) => i.role !== 'locations'), wave)) {
     await produce(port, inputMessages(config, part));
     await waitIngested(port, config, part.map((r) => r.role));
   }
   await waitSensed(port, config);
+}
+
+/** Splits the inputs, in order, into waves of at most `size`, cut wherever a run of day closes starts or ends. */
+export function waves(inputs: readonly RawInput[], size: number): RawInput[][] {
+  const out: RawInput[][] = [];
+  let current: RawInput[] = [];
+  for (const input of inputs) {
+    const last = current.at(-1);
+    if (current.length >= size || (last && (last.role === 'dayCloses') !== (input.role === 'dayCloses'))) {
+      out.push(current);
+      current = [];
+    }
+    current.push(input);
+  }
+  if (current.length > 0) out.push(current);
+  return out;
 }
