@@ -59,22 +59,48 @@ interface Sorted {
   readonly pos: Float64Array;
 }
 
+/**
+ * Values equal up to rounding (relative 1e-12) are one tie group. Within a group the weight is shared equally, so
+ * the result does not depend on the order tied values arrive in, nor jump when rounding (the same ratio computed
+ * from quantities scaled by a constant) splits a tie the other way: a member's position depends on its own weight,
+ * and two near-equal values of different weight swapping places would otherwise move the curve. With equal
+ * weights this changes nothing.
+ */
+const TIE_TOLERANCE = 1e-12;
+
 function sortWeighted(values: ArrayLike<number>, weights?: ArrayLike<number>): Sorted | null {
   const idx: number[] = [];
   for (let i = 0; i < values.length; i++) if (weights === undefined || weights[i]! > 0) idx.push(i);
   if (idx.length === 0) return null;
   idx.sort((a, b) => values[a]! - values[b]! || a - b);
-  const x = new Float64Array(idx.length);
-  const pos = new Float64Array(idx.length);
+  const n = idx.length;
+  const x = new Float64Array(n);
+  const w = new Float64Array(n);
   let total = 0;
-  for (const i of idx) total += weights === undefined ? 1 : weights[i]!;
+  for (let r = 0; r < n; r++) {
+    x[r] = values[idx[r]!]!;
+    w[r] = weights === undefined ? 1 : weights[idx[r]!]!;
+    total += w[r]!;
+  }
+  if (weights !== undefined) {
+    for (let start = 0; start < n; ) {
+      let end = start + 1;
+      const tol = TIE_TOLERANCE * Math.abs(x[start]!);
+      while (end < n && x[end]! - x[start]! <= tol) end++;
+      if (end - start > 1) {
+        let sum = 0;
+        for (let r = start; r < end; r++) sum += w[r]!;
+        for (let r = start; r < end; r++) w[r] = sum / (end - start);
+      }
+      start = end;
+    }
+  }
+  const pos = new Float64Array(n);
   let cum = 0;
-  idx.forEach((i, r) => {
-    const w = weights === undefined ? 1 : weights[i]!;
-    x[r] = values[i]!;
-    pos[r] = (cum + w / 2) / total;
-    cum += w;
-  });
+  for (let r = 0; r < n; r++) {
+    pos[r] = (cum + w[r]! / 2) / total;
+    cum += w[r]!;
+  }
   return { x, pos };
 }
 

@@ -18,13 +18,13 @@ function scaled(sc: Scenario, c: number): Scenario {
 const close = (a: number, b: number) => Math.abs(a - b) <= 1e-7 * Math.max(1, Math.abs(a), Math.abs(b));
 
 describe('properties of the sensing engine', () => {
-  // KNOWN DEFECT, kept visible: with this fixed seed fast-check finds a counterexample (scenario seed 8389,
-  // c = 1.4301, shift = 0.9647) where scaling every quantity does not scale the plan, so some rule in the engine
-  // still changes regime with volume inside this range. `it.fails` keeps the suite green while it is open and
-  // turns red the day the engine is fixed; then make it a plain `it` again.
-  it.fails('scales every adjusted number by c when every quantity is scaled by c (no volume rule changes regime)', () => {
-    // Series of 12–30 units a day stay in one volume band (10–50) for c up to 1.6, far above the small-series
-    // limit, with baselines where the ratio guardrails (not the absolute slack) bind.
+  // Two rules depend on volume by design and are kept out of this property's range: series below
+  // smallSeriesPerDay take the small-series path, and while no series of the location has a noise estimate of its
+  // own yet (its first weeks), rows are weighed by the count noise of a Poisson week, 1/level + φ (DESIGN: "inverse
+  // variance … from its volume and dispersion"). So: 12–30 units a day, one volume band (10–50) for c up to 1.6,
+  // 26 weeks of history so that even the oldest as-of day of the lookback has its own estimates. Quantiles and
+  // dispersion are count-based and are not expected to scale.
+  it('scales every adjusted number by c when every quantity is scaled by c (no volume rule changes regime)', () => {
     fc.assert(
       fc.property(fc.integer({ min: 1, max: 10_000 }), fc.double({ min: 1, max: 1.6, noNaN: true }), fc.double({ min: 0.8, max: 1.3, noNaN: true }), (seed, c, shift) => {
         const series: SeriesSpec[] = Array.from({ length: 6 }, (_, i) => ({
@@ -33,10 +33,10 @@ describe('properties of the sensing engine', () => {
           noise: 0.05,
           earlyShare: 0.1 * (i % 4),
           reviseShare: 0.1,
-          level: (w: number) => (w >= 15 && i % 2 === 0 ? shift : 1),
+          level: (w: number) => (w >= 22 && i % 2 === 0 ? shift : 1),
         }));
-        const sc = generateScenario({ seed, weeks: 19, series });
-        const date = dayOf(sc, 17, seed % 5);
+        const sc = generateScenario({ seed, weeks: 26, series });
+        const date = dayOf(sc, 24, seed % 5);
         const a = planAt(stateOf(sc), date);
         const b = planAt(stateOf(scaled(sc, c)), date);
         a.plans.forEach((pa, i) => {
@@ -51,7 +51,7 @@ describe('properties of the sensing engine', () => {
           });
         });
       }),
-      { numRuns: 6, seed: 20_261_202 },
+      { numRuns: 12, seed: 20_261_202 },
     );
   });
 

@@ -33,6 +33,22 @@ describe('weighted mean', () => {
 });
 
 describe('quantiles and median', () => {
+  it('shares the weight of tied values, so their order and a rounding-level split of the tie change nothing', () => {
+    // Source: by hand. Values 1, 2, 2, 3 with weights 1, (1, 3), 1: total 6, the tie group holds 4, shared 2 and 2,
+    // so the points sit at 0.5/6, 2/6, 4/6 and 5.5/6, and p = 0.75 lies a third of the way from (4/6, 2) to
+    // (5.5/6, 3): 2 + 1/3. Without sharing, the two orders of the tie would give 2.5 and 2.
+    expect(weightedQuantile([1, 2, 2, 3], [1, 1, 3, 1], 0.75)).toBeCloseTo(7 / 3, 12);
+    expect(weightedQuantile([1, 2, 2, 3], [1, 3, 1, 1], 0.75)).toBeCloseTo(7 / 3, 12);
+    // The same ratio computed from quantities scaled by a constant can differ in its last bits (seen: 1.2333333333333338
+    // and 1.2333333333333343 for 37/30); values two ulps apart are the same observation.
+    const a = 37 / 30;
+    const b = a * (1 + 2 * Number.EPSILON);
+    expect(a).not.toBe(b);
+    const lo = Math.min(a, b);
+    const hi = Math.max(a, b);
+    expect(weightedQuantile([1, hi, lo, 1.5], [1, 1, 3, 1], 0.75)).toBeCloseTo(weightedQuantile([1, a, a, 1.5], [1, 1, 3, 1], 0.75), 12);
+  });
+
   it('takes the average of the middle two as the median of an even sample', () => {
     expect(median([4, 1, 3, 2])).toBe(2.5);
     expect(median([5, 1, 3])).toBe(3);
