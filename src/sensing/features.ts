@@ -1,6 +1,6 @@
 import type { LocationSignal, SeriesSignal } from './as-of-signals.ts';
 import type { RecomputeContext } from './recompute-context.ts';
-import { at } from './series-frame.ts';
+import { at, censoredAsOf } from './series-frame.ts';
 import type { SeriesInput } from './series-input.ts';
 
 // The regression's terms, all as shares of the baseline of the target week, so the identity model
@@ -66,7 +66,7 @@ export function computeFeatures(
   if (lead === 0) {
     let td = ((1 - tau) * (toDate - sig.toDateShare * baseline * level)) / baseline;
     // A censored shipment day is never a reason to adjust down.
-    if (f.censored[p] && td < 0) td = 0;
+    if (td < 0 && censoredAsOf(f, ctx, p, ctx.firstDay + 7 * p + ctx.k)) td = 0;
     x[3] = td;
   }
   x[4] = ctx.holidayLoss[p]!;

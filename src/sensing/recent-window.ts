@@ -1,5 +1,5 @@
 import type { RecomputeContext } from './recompute-context.ts';
-import { at } from './series-frame.ts';
+import { at, censoredAsOf } from './series-frame.ts';
 import { rebasedWeekBaseline, type SeriesInput } from './series-input.ts';
 
 // What one series' recent complete weeks say at as-of day j (plan date − 7j), using only what was known that day:
@@ -64,7 +64,7 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
     const weekDay = ctx.firstDay + 7 * p;
     if (first === null || weekDay + 6 < first) continue; // before the series existed
     const demand = at(f.demand, ctx, p, maxLead + m);
-    const ordinary = ctx.holidayLoss[p] === 0 && f.censored[p] === 0;
+    const ordinary = ctx.holidayLoss[p] === 0 && !censoredAsOf(f, ctx, p, asOfDay);
     if (age < s.runRateWeeks && ordinary) {
       const w = ctx.recentWeight[age]!;
       rrNum += w * Math.max(0, demand - f.firstFill[p]!);

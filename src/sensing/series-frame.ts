@@ -22,8 +22,10 @@ export interface SeriesFrame {
   readonly survivingBooked: Float64Array;
   /** First-fill orders' final quantity (excluded from run-rates). */
   readonly firstFill: Float64Array;
-  /** Weeks with a censored shipment day (shipments basis). */
+  /** Weeks with a censored shipment day judged by the as-of instant (shipments basis); see censoredAsOf. */
   readonly censored: Uint8Array;
+  /** Days judged censored (shipments basis), each from what was known censorGraceDays after it. */
+  readonly censoredDay: Uint8Array;
   /** Final demand by day (large lines included) and order intake by order date, by frame day. */
   readonly dayDemand: Float64Array;
   readonly dayIntake: Float64Array;
@@ -38,6 +40,14 @@ export function cutStride(ctx: RecomputeContext): number {
 /** Cumulative value of week position p at cut j (j = ctx.NC: everything known by the as-of instant). */
 export function at(arr: Float64Array, ctx: RecomputeContext, p: number, j: number): number {
   return arr[p * (ctx.NC + 1) + Math.min(j, ctx.NC)]!;
+}
+
+/** Whether week p had a censored day judged by as-of day `asOfDay` (what a plan made that day could know). */
+export function censoredAsOf(f: SeriesFrame, ctx: RecomputeContext, p: number, asOfDay: number): boolean {
+  if (f.censored[p] === 0) return false;
+  const grace = ctx.settings.censorGraceDays;
+  for (let d = 7 * p; d < 7 * p + 7 && ctx.firstDay + d + grace <= asOfDay; d++) if (f.censoredDay[d]) return true;
+  return false;
 }
 
 export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesFrame {
@@ -55,6 +65,11 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
   const survivingBooked = new Float64Array(nWeeks * (maxLead + 1));
   const firstFill = new Float64Array(nWeeks);
   const censored = new Uint8Array(nWeeks);
+  const censoredDay = new Uint8Array(nDays);
+  const grace = ctx.settings.censorGraceDays;
+  // What a day's censoring is judged from: orders due and shipments known by the end of day + grace.
+  const dueJudged = new Float64Array(shipBasis ? nDays : 0);
+  const shippedJudged = new Float64Array(shipBasis ? nDays : 0);
   const dayDemand = new Float64Array(nDays);
   const dayIntake = new Float64Array(nDays);
   const dayDue = shipBasis ? new Float64Array(nDays) : dayDemand;
@@ -77,7 +92,10 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
     const req = parts.requestedDay[i]!;
     if (!shipBasis && q > 0 && (firstActivity === null || req < firstActivity)) firstActivity = req;
     const rd = req - firstDay;
-    if (rd >= 0 && rd < nDays) dayDue[rd] = dayDue[rd]! + q;
+    if (rd >= 0 && rd < nDays) {
+      dayDue[rd] = dayDue[rd]! + q;
+      if (shipBasis && kd <= req + grace) dueJudged[rd] = dueJudged[rd]! + q;
+    }
     const d = req + shift - firstDay;
     if (d < 0 || d >= nDays) continue;
     const p = (d / 7) | 0;
@@ -108,6 +126,7 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
       if (firstActivity === null || sh.shipDay[i]! < firstActivity) firstActivity = sh.shipDay[i]!;
       if (d < 0 || d >= nDays) continue;
       dayDemand[d] = dayDemand[d]! + q;
+      if (sh.knownDay[i]! <= sh.shipDay[i]! + grace) shippedJudged[d] = shippedJudged[d]! + q;
       const p = (d / 7) | 0;
       const cell = p * S + cutOf(p, sh.knownDay[i]!);
       demand[cell] = demand[cell]! + q;
@@ -118,11 +137,19 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
       }
     }
     const share = ctx.settings.censorShortShare;
-    for (let d = 0; d < nDays; d++) if (dayDue[d]! > 0 && dayDemand[d]! < share * dayDue[d]!) censored[(d / 7) | 0] = 1;
+    // Judged from the day's own knowledge window, not from all that is known now: a shipment or line arriving weeks
+    // later must not turn a day censored after the fact (features of past as-of days would see the future).
+    for (let d = 0; d < nDays; d++) {
+      if (firstDay + d + grace > ctx.planDay) break; // not judged yet
+      if (dueJudged[d]! > 0 && shippedJudged[d]! < share * dueJudged[d]!) {
+        censoredDay[d] = 1;
+        censored[(d / 7) | 0] = 1;
+      }
+    }
   }
 
   for (const arr of shipBasis ? [book, bookLarge, demand, demandLarge] : [book, bookLarge]) {
     for (let p = 0; p < nWeeks; p++) for (let j = 1; j < S; j++) arr[p * S + j] = arr[p * S + j]! + arr[p * S + j - 1]!;
   }
-  return { demand, demandLarge, book, bookLarge, known0, known0Large, toDate0, survivingBooked, firstFill, censored, dayDemand, dayIntake, firstActivityDay: firstActivity };
+  return { demand, demandLarge, book, bookLarge, known0, known0Large, toDate0, survivingBooked, firstFill, censored, censoredDay, dayDemand, dayIntake, firstActivityDay: firstActivity };
 }

@@ -81,6 +81,12 @@ export const sensingSettingsSchema = z
     largeLineMinHistory: z.number().int().min(1).default(3),
     /** Shipments basis: a day is censored when shipments fall below this share of the orders due (share). */
     censorShortShare: share.default(0.8),
+    /**
+     * Shipments basis: a day's censoring is judged from what is known by the end of the day this many days later, and
+     * from then on never changes, so a plan made then and a recompute weeks later see the same censored days (days).
+     * One day is common practice: shipments are booked by the next morning.
+     */
+    censorGraceDays: z.number().int().min(0).max(7).default(1),
     /** Capacity of a reduced holiday relative to a normal day (share). */
     reducedDayShare: share.default(0.5),
     /** Below this volume a series is small: exact count tests, baseline passed through (units per business day). */
