@@ -68,8 +68,13 @@ export class ChangelogReader {
     await new Promise<void>((resolve, reject) => {
       this.requests.set(partition, { until: BigInt(until), onRecord, done: (err) => (err ? reject(err) : resolve()) });
       const tp = { topic: this.options.topic, partition };
-      this.consumer.seek(tp, from);
-      this.consumer.resume([tp]);
+      try {
+        this.consumer.seek(tp, from);
+        this.consumer.resume([tp]);
+      } catch (err) {
+        // A request left behind would refuse every later restore of this partition as "already running".
+        this.finish(partition, err as Error);
+      }
     });
   }
 

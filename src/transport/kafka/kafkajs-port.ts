@@ -28,6 +28,7 @@ import {
   type TransactionalProducer,
   type WrittenOffset,
 } from './kafka-port.ts';
+import { ConsumerIntents, isClusterUnavailable } from './consumer-intents.ts';
 import { createLocationPartitioner } from './location-partitioner.ts';
 
 // kafkajs 2.2.4 behind the port. Its quirks are handled here and nowhere else: it has no rebalance listener (the
@@ -234,13 +235,20 @@ export function createKafkajsPort(settings: KafkaClientSettings): KafkaPort {
         readUncommitted: false,
         retry: { retries: 8, initialRetryTime: 300, maxRetryTime: 5_000 },
       });
+      const intents = new ConsumerIntents(consumer);
+      let stopped = false;
+      let restartTimer: NodeJS.Timeout | undefined;
+      let restarts = 0;
+      const log = settings.logger.child({ component: 'kafka-consumer', groupId: options.groupId });
       return {
         async run(handlers: GroupConsumerHandlers) {
           consumer.on(consumer.events.GROUP_JOIN, (event) => {
+            restarts = 0;
             const assignment: TopicPartition[] = [];
             for (const [topic, partitions] of Object.entries(event.payload.memberAssignment)) {
               for (const partition of partitions) assignment.push({ topic, partition });
             }
+            intents.rejoined();
             handlers.onAssignment(assignment);
           });
           if (handlers.onBatchEnd) {
@@ -249,40 +257,63 @@ export function createKafkajsPort(settings: KafkaClientSettings): KafkaPort {
               onBatchEnd({ topic: event.payload.topic, partition: event.payload.partition }, event.payload.lastOffset);
             });
           }
+          const begin = async () => {
+            await consumer.connect();
+            await consumer.subscribe({ topics: [...options.topics], fromBeginning: options.fromBeginning });
+            await consumer.run({
+              autoCommit: false,
+              eachBatchAutoResolve: false,
+              partitionsConsumedConcurrently: options.partitionsConsumedConcurrently ?? 1,
+              eachBatch: async ({ batch, resolveOffset, heartbeat, isRunning, isStale }) => {
+                const messages: IncomingMessage[] = batch.messages.map((m) => ({
+                  topic: batch.topic,
+                  partition: batch.partition,
+                  offset: m.offset,
+                  key: m.key === null || m.key === undefined ? null : m.key.toString(),
+                  value: m.value ?? null,
+                  headers: headersIn(m.headers),
+                  timestampMs: Number(m.timestamp),
+                }));
+                const ours: Batch = {
+                  topic: batch.topic,
+                  partition: batch.partition,
+                  messages,
+                  lastOffset: batch.lastOffset(),
+                  highWatermark: batch.highWatermark,
+                };
+                await handlers.eachBatch(ours, { resolve: resolveOffset, heartbeat, isRunning, isStale });
+              },
+            });
+          };
+          // kafkajs restarts a crashed consumer only when it deems the error retriable; a cluster that is merely away
+          // (a broker restart) can still end in a "non-retriable" crash. Those are started again here, with a
+          // growing pause, for as long as it takes; anything else stops the stage.
+          const restartLater = (error: unknown) => {
+            if (stopped) return;
+            const waitMs = Math.min(30_000, 500 * 2 ** Math.min(restarts, 6));
+            restarts++;
+            log.warn({ err: error, waitMs, attempt: restarts }, 'the consumer lost the cluster; starting it again');
+            restartTimer = setTimeout(() => {
+              restartTimer = undefined;
+              if (stopped) return;
+              begin().catch((err: unknown) => (isClusterUnavailable(err) ? restartLater(err) : handlers.onCrash(err as Error)));
+            }, waitMs);
+          };
           consumer.on(consumer.events.CRASH, (event) => {
-            if (!event.payload.restart) handlers.onCrash(event.payload.error);
+            if (event.payload.restart) return;
+            if (isClusterUnavailable(event.payload.error)) restartLater(event.payload.error);
+            else handlers.onCrash(event.payload.error);
           });
-          await consumer.connect();
-          await consumer.subscribe({ topics: [...options.topics], fromBeginning: options.fromBeginning });
-          await consumer.run({
-            autoCommit: false,
-            eachBatchAutoResolve: false,
-            partitionsConsumedConcurrently: options.partitionsConsumedConcurrently ?? 1,
-            eachBatch: async ({ batch, resolveOffset, heartbeat, isRunning, isStale }) => {
-              const messages: IncomingMessage[] = batch.messages.map((m) => ({
-                topic: batch.topic,
-                partition: batch.partition,
-                offset: m.offset,
-                key: m.key === null || m.key === undefined ? null : m.key.toString(),
-                value: m.value ?? null,
-                headers: headersIn(m.headers),
-                timestampMs: Number(m.timestamp),
-              }));
-              const ours: Batch = {
-                topic: batch.topic,
-                partition: batch.partition,
-                messages,
-                lastOffset: batch.lastOffset(),
-                highWatermark: batch.highWatermark,
-              };
-              await handlers.eachBatch(ours, { resolve: resolveOffset, heartbeat, isRunning, isStale });
-            },
-          });
+          await begin();
         },
-        pause: (partitions) => consumer.pause(groupTopicPartitions(partitions)),
-        resume: (partitions) => consumer.resume(groupTopicPartitions(partitions)),
-        seek: (tp, offset) => consumer.seek({ topic: tp.topic, partition: tp.partition, offset }),
-        stop: () => consumer.disconnect(),
+        pause: (partitions) => intents.pause(partitions),
+        resume: (partitions) => intents.resume(partitions),
+        seek: (tp, offset) => intents.seek(tp, offset),
+        stop: () => {
+          stopped = true;
+          if (restartTimer) clearTimeout(restartTimer);
+          return consumer.disconnect();
+        },
       };
     },
   };
@@ -300,12 +331,6 @@ async function waitForLeaders(admin: Admin, topics: readonly string[], timeoutMs
     if (Date.now() > deadline) throw new Error(`topics ${topics.join(', ')} have no leader after ${timeoutMs} ms`);
     await new Promise((resolve) => setTimeout(resolve, 200));
   }
-}
-
-function groupTopicPartitions(partitions: readonly TopicPartition[]): { topic: string; partitions: number[] }[] {
-  const byTopic = new Map<string, number[]>();
-  for (const { topic, partition } of partitions) byTopic.set(topic, [...(byTopic.get(topic) ?? []), partition]);
-  return [...byTopic].map(([topic, ps]) => ({ topic, partitions: ps }));
 }
 
 function groupOffsets(offsets: readonly WrittenOffset[]): { topic: string; partitions: { partition: number; offset: string }[] }[] {

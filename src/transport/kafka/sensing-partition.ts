@@ -77,9 +77,15 @@ export class SensingPartition {
 
   /** Nothing is fetched for the partition until its state is restored. */
   start(): Promise<void> {
-    this.deps.consumer.pause([this.tp]);
+    // Restoring before pausing: were the pause to throw, the partition would otherwise look ready without a state
+    // and never be fetched again.
     this.status = 'restoring';
     this.restoring ??= this.restoreUntilDone().finally(() => (this.restoring = undefined));
+    try {
+      this.deps.consumer.pause([this.tp]);
+    } catch (err) {
+      this.log.warn({ err }, 'pausing the partition for its restore failed; its batches are ignored until restored');
+    }
     return this.restoring;
   }
 
