@@ -28,7 +28,8 @@ import {
   type TransactionalProducer,
   type WrittenOffset,
 } from './kafka-port.ts';
-import { ConsumerIntents, isClusterUnavailable } from './consumer-intents.ts';
+import { ConsumerIntents } from './consumer-intents.ts';
+import { ConsumerRestarts } from './consumer-restarts.ts';
 import { createLocationPartitioner } from './location-partitioner.ts';
 
 // kafkajs 2.2.4 behind the port. Its quirks are handled here and nowhere else: it has no rebalance listener (the
@@ -236,14 +237,11 @@ export function createKafkajsPort(settings: KafkaClientSettings): KafkaPort {
         retry: { retries: 8, initialRetryTime: 300, maxRetryTime: 5_000 },
       });
       const intents = new ConsumerIntents(consumer);
-      let stopped = false;
-      let restartTimer: NodeJS.Timeout | undefined;
-      let restarts = 0;
-      const log = settings.logger.child({ component: 'kafka-consumer', groupId: options.groupId });
+      let restarts: ConsumerRestarts | undefined;
       return {
         async run(handlers: GroupConsumerHandlers) {
           consumer.on(consumer.events.GROUP_JOIN, (event) => {
-            restarts = 0;
+            restarts?.joined();
             const assignment: TopicPartition[] = [];
             for (const [topic, partitions] of Object.entries(event.payload.memberAssignment)) {
               for (const partition of partitions) assignment.push({ topic, partition });
@@ -285,33 +283,17 @@ export function createKafkajsPort(settings: KafkaClientSettings): KafkaPort {
               },
             });
           };
-          // kafkajs restarts a crashed consumer only when it deems the error retriable; a cluster that is merely away
-          // (a broker restart) can still end in a "non-retriable" crash. Those are started again here, with a
-          // growing pause, for as long as it takes; anything else stops the stage.
-          const restartLater = (error: unknown) => {
-            if (stopped) return;
-            const waitMs = Math.min(30_000, 500 * 2 ** Math.min(restarts, 6));
-            restarts++;
-            log.warn({ err: error, waitMs, attempt: restarts }, 'the consumer lost the cluster; starting it again');
-            restartTimer = setTimeout(() => {
-              restartTimer = undefined;
-              if (stopped) return;
-              begin().catch((err: unknown) => (isClusterUnavailable(err) ? restartLater(err) : handlers.onCrash(err as Error)));
-            }, waitMs);
-          };
-          consumer.on(consumer.events.CRASH, (event) => {
-            if (event.payload.restart) return;
-            if (isClusterUnavailable(event.payload.error)) restartLater(event.payload.error);
-            else handlers.onCrash(event.payload.error);
-          });
+          const log = settings.logger.child({ component: 'kafka-consumer', groupId: options.groupId });
+          const policy = new ConsumerRestarts(begin, (error) => handlers.onCrash(error), log);
+          restarts = policy;
+          consumer.on(consumer.events.CRASH, (event) => policy.crashed(event.payload.error, event.payload.restart));
           await begin();
         },
         pause: (partitions) => intents.pause(partitions),
         resume: (partitions) => intents.resume(partitions),
         seek: (tp, offset) => intents.seek(tp, offset),
         stop: () => {
-          stopped = true;
-          if (restartTimer) clearTimeout(restartTimer);
+          restarts?.stop();
           return consumer.disconnect();
         },
       };
