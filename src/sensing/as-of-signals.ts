@@ -244,7 +244,8 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
     }
     if (!(den > 0)) continue;
     recentRatio[i] = num / den;
-    deltaOf[i] = recentRatio[i]! / factorHat - 1;
+    // Against the gated factor the series is planned on, so that with full evidence R·q is the series' own ratio.
+    deltaOf[i] = recentRatio[i]! / factor - 1;
     dvarOf[i] = noise[i]! * lvl.sumSquares;
     deltas.push(deltaOf[i]!);
     dvars.push(dvarOf[i]!);

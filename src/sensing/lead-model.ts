@@ -62,14 +62,7 @@ export function fitLeadModel(rows: TrainingRows, survival: number, ctx: Recomput
       const rms2 = sumW > 0 ? ss / sumW : 0;
       return Math.max(1e-9, rms2 > 0 ? (lambda * s.ridgeReferenceTerm ** 2) / rms2 : lambda);
     });
-    const fit = solveWls({
-      columns: rows.columns,
-      y,
-      weights: rows.weight,
-      intercept: false,
-      ridge: { strength, target: FEATURE_PRIOR },
-      names: [...FEATURE_NAMES],
-    });
+    const fit = fitLevelsTogether(rows, y, strength);
     coefficients = Float64Array.from(fit.coefficients);
     // A booked excess carries through one for one, a little more where early bookings herald the rest of the week.
     // Rows from the weeks right after a level shift (book up, level terms not yet caught up) would teach a much
@@ -105,4 +98,53 @@ export function fitLeadModel(rows: TrainingRows, survival: number, ctx: Recomput
     survival,
     dispersion,
   };
+}
+
+/** Columns that share one coefficient (their sum is the design column); columns in no group get 0. */
+type Groups = readonly (readonly number[])[];
+
+const LOCATION = 1;
+const SERIES = 2;
+
+/**
+ * The WLS fit with one coefficient for both evidence-gated level terms, kept non-negative. The location factor R and
+ * the series factor q are estimated apart (their own evidence gates), but the plan carries their product through:
+ * 1 + β·[(R − 1) + R·(q − 1)]·decay = 1 + β·(R·q − 1)·decay. Two free slopes broke that: a series that does not
+ * share a location-wide rise has q ≈ 1/R, and with β_location ≠ β_series it was planned by (β_location − β_series)·
+ * (R − 1) away from its own level, up or down. And at long leads the as-of level terms of the training rows vary by
+ * a few per cent, so a change no as-of day could see (a heat wave's first weeks) taught a negative slope from that
+ * sliver, which an open gate then extrapolated into plans below baseline in the middle of the rise. A negative
+ * shared slope is taken out (0: the level is not carried at this lead) and the rest refitted, the active-set step
+ * of non-negative least squares.
+ */
+function fitLevelsTogether(rows: TrainingRows, y: Float64Array, strength: number[]): { coefficients: number[]; standardErrors: number[] | null; weightedR2: number | null; fitted: Float64Array } {
+  const fitGroups = (groups: Groups) => {
+    const fit = solveWls({
+      columns: groups.map((g) => (g.length === 1 ? rows.columns[g[0]!]! : sumColumns(g.map((c) => rows.columns[c]!)))),
+      y,
+      weights: rows.weight,
+      intercept: false,
+      ridge: { strength: groups.map((g) => strength[g[0]!]!), target: groups.map((g) => FEATURE_PRIOR[g[0]!]!) },
+      names: groups.map((g) => g.map((c) => FEATURE_NAMES[c]!).join('+')),
+    });
+    const coefficients = new Array<number>(FEATURE_COUNT).fill(0);
+    const standardErrors = fit.standardErrors ? new Array<number>(FEATURE_COUNT).fill(0) : null;
+    groups.forEach((g, k) => {
+      for (const c of g) {
+        coefficients[c] = fit.coefficients[k]!;
+        if (standardErrors) standardErrors[c] = fit.standardErrors![k]!;
+      }
+    });
+    return { coefficients, standardErrors, weightedR2: fit.weightedR2, fitted: Float64Array.from(fit.fitted) };
+  };
+  const others = rows.columns.map((_, c) => c).filter((c) => c !== LOCATION && c !== SERIES).map((c) => [c]);
+  const shared = fitGroups([...others, [LOCATION, SERIES]]);
+  if (shared.coefficients[LOCATION]! >= 0) return shared;
+  return fitGroups(others);
+}
+
+function sumColumns(columns: readonly Float64Array[]): Float64Array {
+  const out = new Float64Array(columns[0]!.length);
+  for (const col of columns) for (let r = 0; r < out.length; r++) out[r] = out[r]! + col[r]!;
+  return out;
 }
