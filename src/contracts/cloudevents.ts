@@ -40,8 +40,8 @@ export function cloudEvent<T>(attributes: CloudEventAttributes, data: T): CloudE
 
 export type Headers = Record<string, string>;
 
-/** Binary content mode over Kafka: data is the message value, attributes travel as headers. */
-export function toKafkaBinary<T>(event: CloudEvent<T>): { headers: Headers; value: string } {
+/** Binary content mode over Kafka: data is the message value, attributes travel as headers. `value` is the data's JSON text when the caller has it already. */
+export function toKafkaBinary<T>(event: CloudEvent<T>, value: string = JSON.stringify(event.data)): { headers: Headers; value: string } {
   const headers: Headers = {
     ce_specversion: event.specversion,
     ce_id: event.id,
@@ -52,7 +52,7 @@ export function toKafkaBinary<T>(event: CloudEvent<T>): { headers: Headers; valu
   if (event.time !== undefined) headers.ce_time = event.time;
   if (event.subject !== undefined) headers.ce_subject = event.subject;
   if (event.dataschema !== undefined) headers.ce_dataschema = event.dataschema;
-  return { headers, value: JSON.stringify(event.data) };
+  return { headers, value };
 }
 
 export function fromKafkaBinary<T = unknown>(headers: Record<string, string | Buffer | undefined>, value: string | Buffer): CloudEvent<T> {

@@ -4,7 +4,7 @@ import { eventTimeMs, type EventLogRecord } from './event-log-record.ts';
 import { addDays, isBusinessDay, localDateOf, watermarkCloseMs } from './local-day.ts';
 import type { DayFacts, LocationModel, SenseAsOf, SensedDay } from './location-model-port.ts';
 import type { LocationRuntimeState } from './location-runtime-state.ts';
-import { accuracyOutput, alertOutput, buildManifest, deadLetterOutput, manifestOutput, planOutput, replanOutput } from './output-records.ts';
+import { accuracyOutput, alertOutput, buildManifest, deadLetterOutput, manifestOutput, planOutput, planText, replanOutput } from './output-records.ts';
 import { restatementShare } from './restatement.ts';
 import type { StageSettings } from './stage-settings.ts';
 import type { BatchResult, OutputRecord } from './stage-output.ts';
@@ -129,8 +129,9 @@ export class LocationProcessor {
     const s = this.state;
     const plans = [...day.plans].sort((a, b) => (a.item < b.item ? -1 : a.item > b.item ? 1 : 0)).map((p) => ({ ...p, revision }));
     const src = this.settings.eventSource;
-    for (const plan of plans) this.outputs.push(planOutput(src, plan, timeMs));
-    this.outputs.push(manifestOutput(src, buildManifest(s.master.location, asOf.planDate, revision, plans, day.model), timeMs));
+    const texts = plans.map(planText);
+    for (let i = 0; i < plans.length; i++) this.outputs.push(planOutput(src, plans[i]!, timeMs, texts[i]));
+    this.outputs.push(manifestOutput(src, buildManifest(s.master.location, asOf.planDate, revision, plans, day.model, texts), timeMs));
     this.model.published({ ...day, plans }, asOf, revision);
     s.lastClose = {
       planDate: asOf.planDate,

@@ -23,15 +23,25 @@ export function planText(plan: Plan): string {
 }
 
 /** SHA-256 (hex) over each plan's text followed by a line feed, in key order (the order they are published). */
-export function plansChecksum(plans: readonly Plan[]): string {
+export function plansChecksum(plans: readonly Plan[], texts: readonly string[] = plans.map(planText)): string {
   const hash = createHash('sha256');
-  for (const p of plans) hash.update(`${planText(p)}\n`);
+  for (const t of texts) hash.update(`${t}\n`);
   return hash.digest('hex');
 }
 
-export function planOutput(source: string, plan: Plan, timeMs: number): OutputRecord {
+// A close writes each plan's text once, for the manifest checksum; the transports send that same text instead of
+// encoding the plan a second time (10k plans of a few kilobytes each). Keyed by the envelope, which nothing alters.
+const dataTexts = new WeakMap<object, string>();
+
+/** The JSON text of an output's data: what travels as the Kafka value or the stored row. */
+export function outputDataText(output: OutputRecord): string {
+  return dataTexts.get(output.event) ?? JSON.stringify(output.event.data);
+}
+
+/** `text` is planText(plan) when the caller already has it. */
+export function planOutput(source: string, plan: Plan, timeMs: number, text?: string): OutputRecord {
   const key = `${plan.location}|${plan.item}`;
-  return {
+  const output: OutputRecord = {
     topic: 'plans',
     key,
     location: plan.location,
@@ -47,10 +57,13 @@ export function planOutput(source: string, plan: Plan, timeMs: number): OutputRe
       plan,
     ),
   };
+  if (text !== undefined) dataTexts.set(output.event, text);
+  return output;
 }
 
-export function buildManifest(location: Manifest['location'], planDate: string, revision: number, plans: readonly Plan[], model: Manifest['model']): Manifest {
-  return { schemaVersion: MANIFEST_SCHEMA_VERSION, location, planDate, revision, seriesCount: plans.length, checksum: plansChecksum(plans), model: [...model] };
+/** `texts` are the plans' planText() when the caller already has them. */
+export function buildManifest(location: Manifest['location'], planDate: string, revision: number, plans: readonly Plan[], model: Manifest['model'], texts?: readonly string[]): Manifest {
+  return { schemaVersion: MANIFEST_SCHEMA_VERSION, location, planDate, revision, seriesCount: plans.length, checksum: plansChecksum(plans, texts), model: [...model] };
 }
 
 export function manifestOutput(source: string, manifest: Manifest, timeMs: number): OutputRecord {

@@ -7,6 +7,7 @@ import type { DeadLetterRecord } from '../dead-letter.ts';
 import type { LogEntry } from '../event-log-record.ts';
 import { historyStream, type Rejection } from '../history/history-stream.ts';
 import type { LocationModelFactory } from '../location-model-port.ts';
+import { outputDataText } from '../output-records.ts';
 import { createSensingStage } from '../sensing-stage.ts';
 import { DEFAULT_STAGE_SETTINGS, type StageSettings } from '../stage-settings.ts';
 import type { OutputRecord } from '../stage-output.ts';
@@ -62,7 +63,7 @@ export async function runBacktest(options: BacktestOptions): Promise<BacktestSum
   const counts = { plans: 0, manifests: 0, alerts: 0 };
 
   const route = (o: OutputRecord) => {
-    const text = JSON.stringify(o.event.data);
+    const text = outputDataText(o);
     if (o.topic === 'plans') {
       if (o.key.endsWith('|#manifest')) {
         manifests.write(text);

@@ -2,6 +2,7 @@ import Database from 'better-sqlite3';
 import { NearcastError } from '../../errors.ts';
 import type { DeadLetterRecord } from '../../runtime/dead-letter.ts';
 import { decodeEventLogRecord, encodeEventLogRecord, type EventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
+import { outputDataText } from '../../runtime/output-records.ts';
 import { partitionFor } from '../../runtime/partitioner.ts';
 import type { ChangelogEntry, OutputRecord, OutputTopic } from '../../runtime/stage-output.ts';
 import { DDL, SCHEMA_VERSION } from './schema.ts';
@@ -133,7 +134,7 @@ export class EmbeddedStore {
       }
       const seq = this.nextOutputSeq++;
       const e = o.event;
-      this.stmt.output.run(seq, o.topic, o.key, o.location, e.id, e.type, e.source, e.time ?? null, e.subject ?? null, e.dataschema ?? null, JSON.stringify(e.data));
+      this.stmt.output.run(seq, o.topic, o.key, o.location, e.id, e.type, e.source, e.time ?? null, e.subject ?? null, e.dataschema ?? null, outputDataText(o));
       this.stmt.latest.run(o.topic, o.key, o.location, seq);
     }
   }

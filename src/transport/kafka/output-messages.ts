@@ -1,7 +1,7 @@
 import type { Topics } from '../../config/topics.ts';
 import { toKafkaBinary } from '../../contracts/cloudevents.ts';
 import type { DeadLetterRecord } from '../../runtime/dead-letter.ts';
-import { deadLetterOutput } from '../../runtime/output-records.ts';
+import { deadLetterOutput, outputDataText } from '../../runtime/output-records.ts';
 import type { OutputRecord } from '../../runtime/stage-output.ts';
 import type { OutgoingMessage } from './kafka-port.ts';
 
@@ -9,7 +9,7 @@ import type { OutgoingMessage } from './kafka-port.ts';
 // value), keyed for compaction; the location partitioner places each on its location's partition.
 
 export function outputMessage(output: OutputRecord, topics: Topics): OutgoingMessage {
-  const { headers, value } = toKafkaBinary(output.event);
+  const { headers, value } = toKafkaBinary(output.event, outputDataText(output));
   return { topic: topics[output.topic], key: output.key, value, headers };
 }
 
