@@ -23,7 +23,8 @@ import {
   type SensingSettings,
 } from '../sensing/index.ts';
 import { monitoringDayInput } from './core/monitoring-day.ts';
-import { assembleParts, C, S, type PartedBase, type PreviousPlans } from './core/parted-snapshot.ts';
+import { assembleParts, C, F, S, type PartedBase, type PreviousPlans } from './core/parted-snapshot.ts';
+import { seriesSave, type FullSave } from './core/series-tail.ts';
 import { completeWeeks, emptyLedger, noteActual, notePlans, type WeekLedger } from './core/week-ledger.ts';
 import { localDateOf } from './local-day.ts';
 import type { ApplyOutcome, ClosedDayOutputs, DayFacts, FactRecord, FeedCheckFacts, LocationModel, LocationModelFactory, SenseAsOf, SensedDay } from './location-model-port.ts';
@@ -72,7 +73,10 @@ class CoreLocationModel implements LocationModel {
   private dirtyC: Set<string> | null = null;
   /** Parts written so far, to tombstone the ones that disappear (pruned series). */
   private writtenS = new Set<string>();
+  private writtenF = new Set<string>();
   private writtenC = new Set<string>();
+  /** Each series' last full save (`f:`) in this process; none after a restore, so the first save is full. */
+  private fullSaves = new Map<string, FullSave>();
 
   constructor(
     private sensing: LocationState,
@@ -84,6 +88,7 @@ class CoreLocationModel implements LocationModel {
       this.dirtyS = new Set();
       this.dirtyC = new Set();
       this.writtenS = new Set(sensing.series.keys());
+      this.writtenF = new Set(sensing.series.keys());
       this.writtenC = new Set(this.closeItems());
     }
   }
@@ -221,8 +226,22 @@ class CoreLocationModel implements LocationModel {
     const parts = new Map<string, unknown>();
     const sItems = this.dirtyS === null ? [...this.sensing.series.keys()] : [...this.dirtyS].filter((i) => this.sensing.series.has(i));
     const chosen = new Map(sItems.map((i) => [i, this.sensing.series.get(i)!]));
-    for (const snap of snapshotLocationState({ ...this.sensing, series: chosen }).series) parts.set(`${S}${snap.item}`, snap);
+    for (const snap of snapshotLocationState({ ...this.sensing, series: chosen }).series) {
+      const save = seriesSave(snap, this.fullSaves.get(snap.item));
+      if (save.kind === 'full') {
+        parts.set(`${F}${snap.item}`, save.full);
+        this.fullSaves.set(snap.item, save.save);
+        this.writtenF.add(snap.item);
+      }
+      parts.set(`${S}${snap.item}`, save.tail);
+    }
     for (const item of this.writtenS) if (!this.sensing.series.has(item)) parts.set(`${S}${item}`, null);
+    for (const item of this.writtenF) {
+      if (this.sensing.series.has(item)) continue;
+      parts.set(`${F}${item}`, null);
+      this.writtenF.delete(item);
+      this.fullSaves.delete(item);
+    }
     this.writtenS = new Set(this.sensing.series.keys());
 
     const closeItems = this.closeItems();
