@@ -77,13 +77,17 @@ const close: EventLogRecord = {
   source: { kind: 'internal', origin: 'cli' },
   record: { eventId: `close-${day}`, location: master.location as never, date: day },
 };
+const cpu0 = process.cpuUsage();
 const t6 = performance.now();
 const result = stage.apply([{ offset: '0', record: close }]);
 const t7 = performance.now();
+const cpu = process.cpuUsage(cpu0);
 const plans = result.outputs.filter((o) => o.topic === 'plans' && !o.key.endsWith('#manifest')).length;
 const manifestAt = result.outputs.findIndex((o) => o.key.endsWith('#manifest'));
 const changelogBytes = result.changelog.reduce((t, e) => t + (e.value?.length ?? 0), 0);
 console.log(`close → manifest: ${ms(t6, t7)} for ${plans} plans (manifest is output ${manifestAt + 1} of ${result.outputs.length}; includes monitoring and the changelog of the batch: ${result.changelog.length} entries, ${(changelogBytes / 1e6).toFixed(1)} MB)`);
+// Wall time swings with whatever else the shared machine runs; the process's own CPU time is steadier.
+console.log(`  CPU time of that batch: ${((cpu.user + cpu.system) / 1000).toFixed(0)} ms (user ${(cpu.user / 1000).toFixed(0)}, system ${(cpu.system / 1000).toFixed(0)}; GC threads count too)`);
 
 const dbDir = mkdtempSync(path.join(tmpdir(), 'nc-bench-db-'));
 const store = new EmbeddedStore(path.join(dbDir, 'bench.sqlite'));

@@ -85,9 +85,11 @@ async function main(): Promise<void> {
     };
     const total = RECORDS + LOCATIONS;
     const started = performance.now();
+    const cpuStarted = process.cpuUsage();
     const service = await serveKafka(config, logger, { createStage: timed, handleSignals: false, setUpTopics: false, port });
     while (applied < total) await sleep(50);
     const e2eMs = performance.now() - started;
+    const e2eCpu = process.cpuUsage(cpuStarted);
     await service.stop();
 
     const restoreStarted = performance.now();
@@ -103,6 +105,8 @@ async function main(): Promise<void> {
     else console.log('kcat raw consume         not measured: kcat is not installed (apt-get install -y kcat)');
     console.log(`end to end (tx on)       ${e2e.toString().padStart(9)} records/s  (${Math.round(e2eMs)} ms, incl. group joins and first restore)`);
     console.log(`  of which stage apply   ${Math.round(applyMs)} ms (state + snapshots); Kafka, parse, validation, transactions: ${Math.round(e2eMs - applyMs)} ms`);
+    // Wall time swings with the broker and whatever else shares the machine; this process's CPU time is steadier.
+    console.log(`  nearcast process CPU during it: ${Math.round((e2eCpu.user + e2eCpu.system) / 1000)} ms (the rest of the wall time is waiting on the broker)`);
     console.log(`  ingest parse + validation + event-log encoding alone, in memory: ${Math.round(validationMs)} ms`);
     for (const [stage, t] of Object.entries(txStats)) {
       console.log(`  ${stage} transactions: ${t.count}, ${t.messages} messages, ${(t.bytes / 1_048_576).toFixed(1)} MiB, ${Math.round(t.ms)} ms open in total`);
