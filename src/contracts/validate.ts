@@ -2,6 +2,7 @@ import type { z } from 'zod';
 import type { ErrorCode } from '../errors.ts';
 import { inputSchemas, type InputRecord, type InputSchemas, type InputType } from './records.ts';
 import { DEFAULT_INPUT_LIMITS, type InputLimits } from './primitives.ts';
+import { utf8Text } from './utf8-text.ts';
 
 export interface Issue {
   /** Dotted field path, e.g. `weeks.3.quantity`; empty for the record as a whole. */
@@ -66,8 +67,9 @@ export class RecordValidator {
 
   /** Validates raw bytes or text as they come off a topic, a file line or an HTTP body. */
   parse<T extends InputType>(type: T, raw: string | Uint8Array): Validation<InputRecord<T>> {
-    const text = typeof raw === 'string' ? raw : Buffer.from(raw).toString('utf8');
-    if (Buffer.byteLength(text, 'utf8') > MAX_RECORD_BYTES) {
+    const text = utf8Text(raw);
+    // A UTF-16 unit takes at most 3 UTF-8 bytes: most records need no byte count.
+    if (text.length * 3 > MAX_RECORD_BYTES && Buffer.byteLength(text, 'utf8') > MAX_RECORD_BYTES) {
       return { ok: false, code: 'NEARCAST_INPUT_TOO_LARGE', issues: [{ path: '', message: `is larger than ${MAX_RECORD_BYTES} bytes` }] };
     }
     let value: unknown;

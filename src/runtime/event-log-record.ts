@@ -4,6 +4,7 @@ import type { Location } from '../contracts/location.ts';
 import type { OrderLine } from '../contracts/order-line.ts';
 import type { InputType } from '../contracts/records.ts';
 import type { Shipment } from '../contracts/shipment.ts';
+import { utf8Text } from '../contracts/utf8-text.ts';
 import type { AlertCommand, DeadlineClose, FeedHealthCheck } from './internal-records.ts';
 
 // The envelope of one record in the internal event log (Kafka topic nearcast.internal.events.v1, or the SQLite
@@ -64,7 +65,7 @@ export function encodeEventLogRecord(record: EventLogRecord): string {
 }
 
 export function decodeEventLogRecord(text: string | Uint8Array): EventLogRecord {
-  const value = JSON.parse(typeof text === 'string' ? text : Buffer.from(text).toString('utf8')) as EventLogRecord;
+  const value = JSON.parse(utf8Text(text)) as EventLogRecord;
   if (value === null || typeof value !== 'object' || value.v !== 1 || typeof value.kind !== 'string') {
     throw new TypeError('not a nearcast event-log record (v1)');
   }

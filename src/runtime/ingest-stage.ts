@@ -1,4 +1,5 @@
 import { INPUT_TYPES, type InputType } from '../contracts/records.ts';
+import { utf8Text } from '../contracts/utf8-text.ts';
 import { jsonDepth, MAX_JSON_DEPTH, MAX_RECORD_BYTES, type RecordValidator } from '../contracts/validate.ts';
 import { deadLetter, type DeadLetterRecord } from './dead-letter.ts';
 import type { EventKind, EventLogRecord, EventSource } from './event-log-record.ts';
@@ -31,7 +32,7 @@ function isInputType(type: string): type is InputType {
 }
 
 export function ingest(raw: RawInput, validator: RecordValidator): IngestResult {
-  const text = typeof raw.value === 'string' ? raw.value : Buffer.from(raw.value).toString('utf8');
+  const text = utf8Text(raw.value);
   const refuse = (code: Parameters<typeof deadLetter>[0]['code'], issues: { path: string; message: string }[], location: string | null = null): IngestResult => ({
     ok: false,
     deadLetter: deadLetter({ type: raw.type, code, issues, stage: 'ingest', source: raw.source, location, arrivalMs: raw.arrivalMs, raw: text }),
