@@ -16,9 +16,6 @@ export interface SeriesInput {
   readonly weekBase: Float64Array;
   readonly weekBaseVersion: ReadonlyArray<BaselineVersionEntry | undefined>;
   readonly rho: Map<BaselineVersionEntry, Map<BaselineVersionEntry, number>>;
-  /** Memo of rebasedWeekBaseline by frame week × as-of (NaN = not yet computed). */
-  readonly rebased: Float64Array;
-  readonly asOfCount: number;
 }
 
 export function prepareSeries(item: string, series: SeriesState, parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesInput {
@@ -35,21 +32,14 @@ export function prepareSeries(item: string, series: SeriesState, parts: SeriesPa
       weekBaseVersion[p] = v;
     }
   }
-  const asOfCount = ctx.J + 1;
-  return { item, series, parts, frame, ref, weekBase, weekBaseVersion, rho: new Map(), rebased: new Float64Array(ctx.nWeeks * asOfCount).fill(NaN), asOfCount };
+  return { item, series, parts, frame, ref, weekBase, weekBaseVersion, rho: new Map() };
 }
 
-/** Baseline of past frame week p rebased onto the version in force at as-of j (NaN when unknown). */
+/**
+ * Baseline of past frame week p rebased onto the version in force at as-of j (NaN when unknown). Each (p, j) is
+ * asked for once per recompute, so only the level ratios between versions are memoised (in `rho`).
+ */
 export function rebasedWeekBaseline(input: SeriesInput, p: number, j: number): number {
-  const cell = p * input.asOfCount + j;
-  const memo = input.rebased[cell]!;
-  if (!Number.isNaN(memo)) return memo;
-  const value = computeRebased(input, p, j);
-  input.rebased[cell] = value;
-  return value;
-}
-
-function computeRebased(input: SeriesInput, p: number, j: number): number {
   const b = input.weekBase[p]!;
   const v = input.weekBaseVersion[p];
   const ref = input.ref[j];
