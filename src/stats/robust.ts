@@ -63,18 +63,25 @@ function sortWeighted(values: ArrayLike<number>, weights?: ArrayLike<number>): S
   const idx: number[] = [];
   for (let i = 0; i < values.length; i++) if (weights === undefined || weights[i]! > 0) idx.push(i);
   if (idx.length === 0) return null;
-  idx.sort((a, b) => values[a]! - values[b]! || a - b);
+  // The comparator returns small integers, not value differences (which would be boxed on every comparison); the
+  // order is the same: by value, ties (including −0 and +0) by index.
+  idx.sort((a, b) => {
+    const va = values[a]!;
+    const vb = values[b]!;
+    return va < vb ? -1 : va > vb ? 1 : a - b;
+  });
   const x = new Float64Array(idx.length);
   const pos = new Float64Array(idx.length);
   let total = 0;
-  for (const i of idx) total += weights === undefined ? 1 : weights[i]!;
+  for (let r = 0; r < idx.length; r++) total += weights === undefined ? 1 : weights[idx[r]!]!;
   let cum = 0;
-  idx.forEach((i, r) => {
+  for (let r = 0; r < idx.length; r++) {
+    const i = idx[r]!;
     const w = weights === undefined ? 1 : weights[i]!;
     x[r] = values[i]!;
     pos[r] = (cum + w / 2) / total;
     cum += w;
-  });
+  }
   return { x, pos };
 }
 
