@@ -11,7 +11,8 @@ import { createLocationState, type LocationState } from '../../src/sensing/locat
 import { pruneLocationState } from '../../src/sensing/prune.ts';
 import { senseLocation, type SenseResult } from '../../src/sensing/sense-location.ts';
 import { sensingSettings, type SensingSettings } from '../../src/sensing/settings.ts';
-import { restoreLocationState, snapshotLocationState } from '../../src/sensing/snapshot.ts';
+import { decodeColumn } from '../../src/sensing/column-codec.ts';
+import { restoreLocationState, snapshotLocationState, type LocationStateSnapshot } from '../../src/sensing/snapshot.ts';
 import { dayNumber } from '../../src/calendar/day-number.ts';
 import { createRng, sampleNormal } from '../../src/stats/random.ts';
 import { closeOf, dayOf, generateScenario, type ScenarioRecord, type SeriesSpec } from '../../test/unit/sensing/helpers/scenario.ts';
@@ -33,6 +34,27 @@ function apply(state: LocationState, r: ScenarioRecord): void {
   if (r.kind === 'order-line') applyOrderLine(state, r.record);
   else if (r.kind === 'baseline-version') applyBaselineVersion(state, r.record);
   else applyShipment(state, r.record);
+}
+
+// The snapshot with every encoded column written out as a plain list under the version-1 schema name: its hash is
+// comparable with fingerprints taken before the compact column form (version 2).
+function asPlainLists(snap: LocationStateSnapshot): unknown {
+  const plain = (cols: Record<string, string | number[]>) =>
+    Object.fromEntries(Object.entries(cols).map(([k, v]) => [k, typeof v === 'string' ? decodeColumn(v) : v]));
+  return {
+    ...snap,
+    schema: 'nearcast.sensing-state.v1',
+    series: snap.series.map((x) => ({
+      ...x,
+      lines: plain(x.lines),
+      shipments: plain(x.shipments),
+      baselines: x.baselines.map((b) => ({
+        ...b,
+        weeks: typeof b.weeks === 'string' ? decodeColumn(b.weeks) : b.weeks,
+        quantities: typeof b.quantities === 'string' ? decodeColumn(b.quantities) : b.quantities,
+      })),
+    })),
+  };
 }
 
 function run(label: string, count: number, withShipments: boolean, settings?: SensingSettings): void {
@@ -61,6 +83,7 @@ function run(label: string, count: number, withShipments: boolean, settings?: Se
   pruneLocationState(state, dayNumber(lastDate));
   const snap = snapshotLocationState(state);
   console.log(`${label} snapshot      ${sha(snap)}`);
+  console.log(`${label} snapshot v1   ${sha(asPlainLists(snap))} (as plain lists, ${JSON.stringify(snap).length} bytes)`);
   const restored = restoreLocationState(JSON.parse(JSON.stringify(snap)));
   const again = senseLocation(restored, { planDate: lastDate, knownAt: closeOf(lastDate) }, settings);
   const direct = senseLocation(state, { planDate: lastDate, knownAt: closeOf(lastDate) }, settings);

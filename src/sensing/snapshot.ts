@@ -1,29 +1,33 @@
 import { createLocationCalendar } from '../calendar/location-calendar.ts';
 import type { Location } from '../contracts/location.ts';
 import { NearcastError } from '../errors.ts';
+import { decodeColumn, encodeColumn } from './column-codec.ts';
 import { Table } from './columns.ts';
 import type { LocationState } from './location-state.ts';
 import { createSeriesState, LINE_COLUMNS, reindexSeries, SHIPMENT_COLUMNS, type BaselineVersionEntry, type SeriesState } from './series-state.ts';
 
 // The canonical JSON form of a location state: rows in knowledge order, customers sorted, series by item. The same
-// records applied in any arrival order give the same snapshot, byte for byte.
+// records applied in any arrival order give the same snapshot, byte for byte. Version 2 writes every numeric column
+// in the compact text form of column-codec.ts (version 1 wrote plain number lists; it still restores).
 
-export const STATE_SCHEMA = 'nearcast.sensing-state.v1';
+export const STATE_SCHEMA = 'nearcast.sensing-state.v2';
+const STATE_SCHEMA_V1 = 'nearcast.sensing-state.v1';
 
 const SAVED_LINE_COLUMNS = (({ prevSameLine: _omit, ...rest }) => rest)(LINE_COLUMNS);
 
 export interface SeriesSnapshot {
   readonly item: string;
-  readonly lines: Record<string, number[]>;
-  readonly shipments: Record<string, number[]>;
+  /** Columns in the text form of column-codec.ts (plain number lists in version 1). */
+  readonly lines: Record<string, string | number[]>;
+  readonly shipments: Record<string, string | number[]>;
   readonly baselines: ReadonlyArray<{
     readonly version: number;
     readonly eventHash: number;
     readonly publishedMs: number;
     readonly knownMs: number;
     readonly knownDay: number;
-    readonly weeks: number[];
-    readonly quantities: number[];
+    readonly weeks: string | number[];
+    readonly quantities: string | number[];
   }>;
 }
 
@@ -46,11 +50,11 @@ function order(n: number, cmp: (a: number, b: number) => number): number[] {
 }
 
 function columnsInOrder(table: Table<Record<string, 'f64' | 'i32'>>, names: readonly string[], idx: number[], map?: Record<string, (v: number) => number>) {
-  const out: Record<string, number[]> = {};
+  const out: Record<string, string> = {};
   for (const name of names) {
     const col = table.cols[name]!;
     const f = map?.[name];
-    out[name] = idx.map((i) => (f ? f(col[i]!) : col[i]!));
+    out[name] = encodeColumn(idx.map((i) => (f ? f(col[i]!) : col[i]!)));
   }
   return out;
 }
@@ -76,8 +80,8 @@ export function snapshotLocationState(state: LocationState): LocationStateSnapsh
         publishedMs: b.publishedMs,
         knownMs: b.knownMs,
         knownDay: b.knownDay,
-        weeks: Array.from(b.weeks),
-        quantities: Array.from(b.quantities),
+        weeks: encodeColumn(b.weeks),
+        quantities: encodeColumn(b.quantities),
       })),
     };
   });
@@ -98,11 +102,24 @@ function corrupt(detail: string): never {
   throw new NearcastError('NEARCAST_STATE_CORRUPT', [detail]);
 }
 
+/** A saved column's values: decoded text (version 2) or a plain list (version 1); undefined when damaged. */
+function columnValues(saved: unknown): number[] | undefined {
+  if (Array.isArray(saved)) return saved as number[];
+  return typeof saved === 'string' ? decodeColumn(saved) : undefined;
+}
+
+function tableColumns(saved: unknown): Record<string, number[] | undefined> | undefined {
+  if (saved === null || typeof saved !== 'object') return undefined;
+  const out: Record<string, number[] | undefined> = {};
+  for (const [name, col] of Object.entries(saved as Record<string, unknown>)) out[name] = columnValues(col);
+  return out;
+}
+
 function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   if (typeof snap?.item !== 'string') corrupt('a series has no item');
   const s = createSeriesState(snap.item);
-  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, snap.lines);
-  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, snap.shipments);
+  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, tableColumns(snap.lines));
+  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, tableColumns(snap.shipments));
   if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
   if (!shipments) corrupt(`series ${snap.item}: shipments are incomplete`);
   for (let i = 0; i < lines.length; i++) {
@@ -113,7 +130,9 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   for (let i = 0; i < shipments.length; i++) s.shipments.push(rowOf(shipments, i) as never);
   if (!Array.isArray(snap.baselines)) corrupt(`series ${snap.item}: baselines must be a list`);
   for (const b of snap.baselines) {
-    if (!Array.isArray(b?.weeks) || !Array.isArray(b.quantities) || b.weeks.length !== b.quantities.length) {
+    const weeks = columnValues(b?.weeks);
+    const quantities = columnValues(b?.quantities);
+    if (!weeks || !quantities || weeks.length !== quantities.length) {
       corrupt(`series ${snap.item}: a baseline version has mismatched weeks`);
     }
     for (const k of ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay'] as const) {
@@ -125,8 +144,8 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
       publishedMs: b.publishedMs,
       knownMs: b.knownMs,
       knownDay: b.knownDay,
-      weeks: Int32Array.from(b.weeks),
-      quantities: Float64Array.from(b.quantities),
+      weeks: Int32Array.from(weeks),
+      quantities: Float64Array.from(quantities),
     };
     s.baselines.push(entry);
   }
@@ -144,7 +163,9 @@ function rowOf(t: Table<Record<string, 'f64' | 'i32'>>, i: number): Record<strin
 /** Rebuilds a location state from its snapshot; NEARCAST_STATE_CORRUPT says what is wrong. */
 export function restoreLocationState(snapshot: unknown): LocationState {
   const snap = snapshot as LocationStateSnapshot;
-  if (snap === null || typeof snap !== 'object' || snap.schema !== STATE_SCHEMA) corrupt(`not a ${STATE_SCHEMA} snapshot`);
+  if (snap === null || typeof snap !== 'object' || (snap.schema !== STATE_SCHEMA && (snap.schema as string) !== STATE_SCHEMA_V1)) {
+    corrupt(`not a ${STATE_SCHEMA} snapshot`);
+  }
   if (typeof snap.location !== 'string' || snap.master?.location !== snap.location) corrupt('location and master data disagree');
   if (!Array.isArray(snap.customers) || !Array.isArray(snap.series) || !Array.isArray(snap.closedDays)) corrupt('lists are missing');
   let calendar;
