@@ -48,13 +48,25 @@ function asPlainLists(snap: LocationStateSnapshot): unknown {
       ...x,
       lines: plain(x.lines),
       shipments: plain(x.shipments),
-      baselines: x.baselines.map((b) => ({
-        ...b,
-        weeks: typeof b.weeks === 'string' ? decodeColumn(b.weeks) : b.weeks,
-        quantities: typeof b.quantities === 'string' ? decodeColumn(b.quantities) : b.quantities,
-      })),
+      baselines: baselinesAsList(x.baselines),
     })),
   };
+}
+
+function baselinesAsList(b: LocationStateSnapshot['series'][number]['baselines']): unknown {
+  if (Array.isArray(b)) return b;
+  const c = b as unknown as Record<string, string>;
+  const col = (k: string) => decodeColumn(c[k]!)!;
+  const counts = col('weekCount');
+  const weeks = col('weeks');
+  const quantities = col('quantities');
+  let at = 0;
+  return col('version').map((version, i) => {
+    const n = counts[i]!;
+    const entry = { version, eventHash: col('eventHash')[i], publishedMs: col('publishedMs')[i], knownMs: col('knownMs')[i], knownDay: col('knownDay')[i], weeks: weeks.slice(at, at + n), quantities: quantities.slice(at, at + n) };
+    at += n;
+    return entry;
+  });
 }
 
 function run(label: string, count: number, withShipments: boolean, settings?: SensingSettings): void {

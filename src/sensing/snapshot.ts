@@ -15,20 +15,38 @@ const STATE_SCHEMA_V1 = 'nearcast.sensing-state.v1';
 
 const SAVED_LINE_COLUMNS = (({ prevSameLine: _omit, ...rest }) => rest)(LINE_COLUMNS);
 
+/** A baseline version as version 1 saved it, one object per version. */
+export interface BaselineSnapshotV1 {
+  readonly version: number;
+  readonly eventHash: number;
+  readonly publishedMs: number;
+  readonly knownMs: number;
+  readonly knownDay: number;
+  readonly weeks: number[];
+  readonly quantities: number[];
+}
+
+/**
+ * Version 2: the versions as columns (one value per version), their weeks and quantities concatenated in version
+ * order, `weekCount` weeks per version.
+ */
+export interface BaselineColumnsSnapshot {
+  readonly version: string;
+  readonly eventHash: string;
+  readonly publishedMs: string;
+  readonly knownMs: string;
+  readonly knownDay: string;
+  readonly weekCount: string;
+  readonly weeks: string;
+  readonly quantities: string;
+}
+
 export interface SeriesSnapshot {
   readonly item: string;
   /** Columns in the text form of column-codec.ts (plain number lists in version 1). */
   readonly lines: Record<string, string | number[]>;
   readonly shipments: Record<string, string | number[]>;
-  readonly baselines: ReadonlyArray<{
-    readonly version: number;
-    readonly eventHash: number;
-    readonly publishedMs: number;
-    readonly knownMs: number;
-    readonly knownDay: number;
-    readonly weeks: string | number[];
-    readonly quantities: string | number[];
-  }>;
+  readonly baselines: BaselineColumnsSnapshot | readonly BaselineSnapshotV1[];
 }
 
 export interface LocationStateSnapshot {
@@ -59,6 +77,57 @@ function columnsInOrder(table: Table<Record<string, 'f64' | 'i32'>>, names: read
   return out;
 }
 
+function baselineColumns(baselines: readonly BaselineVersionEntry[]): BaselineColumnsSnapshot {
+  const weeks: number[] = [];
+  const quantities: number[] = [];
+  for (const b of baselines) {
+    for (let i = 0; i < b.weeks.length; i++) {
+      weeks.push(b.weeks[i]!);
+      quantities.push(b.quantities[i]!);
+    }
+  }
+  return {
+    version: encodeColumn(baselines.map((b) => b.version)),
+    eventHash: encodeColumn(baselines.map((b) => b.eventHash)),
+    publishedMs: encodeColumn(baselines.map((b) => b.publishedMs)),
+    knownMs: encodeColumn(baselines.map((b) => b.knownMs)),
+    knownDay: encodeColumn(baselines.map((b) => b.knownDay)),
+    weekCount: encodeColumn(baselines.map((b) => b.weeks.length)),
+    weeks: encodeColumn(weeks),
+    quantities: encodeColumn(quantities),
+  };
+}
+
+/** The saved versions as version-1 objects (either form in, undefined when damaged). */
+function baselineList(saved: unknown): BaselineSnapshotV1[] | undefined {
+  if (Array.isArray(saved)) return saved as BaselineSnapshotV1[];
+  if (saved === null || typeof saved !== 'object') return undefined;
+  const c = saved as Record<string, unknown>;
+  const [version, eventHash, publishedMs, knownMs, knownDay, weekCount, weeks, quantities] = (
+    ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay', 'weekCount', 'weeks', 'quantities'] as const
+  ).map((k) => columnValues(c[k]));
+  if (!version || !eventHash || !publishedMs || !knownMs || !knownDay || !weekCount || !weeks || !quantities) return undefined;
+  const n = version.length;
+  if ([eventHash, publishedMs, knownMs, knownDay, weekCount].some((col) => col.length !== n) || weeks.length !== quantities.length) return undefined;
+  const out: BaselineSnapshotV1[] = [];
+  let at = 0;
+  for (let i = 0; i < n; i++) {
+    const count = weekCount[i]!;
+    if (!Number.isInteger(count) || count < 0 || at + count > weeks.length) return undefined;
+    out.push({
+      version: version[i]!,
+      eventHash: eventHash[i]!,
+      publishedMs: publishedMs[i]!,
+      knownMs: knownMs[i]!,
+      knownDay: knownDay[i]!,
+      weeks: weeks.slice(at, at + count),
+      quantities: quantities.slice(at, at + count),
+    });
+    at += count;
+  }
+  return at === weeks.length ? out : undefined;
+}
+
 export function snapshotLocationState(state: LocationState): LocationStateSnapshot {
   const sortedCustomers = [...state.customers].sort();
   const remap = new Map(state.customers.map((c, i) => [i, sortedCustomers.indexOf(c)]));
@@ -74,15 +143,7 @@ export function snapshotLocationState(state: LocationState): LocationStateSnapsh
       item,
       lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
       shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
-      baselines: s.baselines.map((b) => ({
-        version: b.version,
-        eventHash: b.eventHash,
-        publishedMs: b.publishedMs,
-        knownMs: b.knownMs,
-        knownDay: b.knownDay,
-        weeks: encodeColumn(b.weeks),
-        quantities: encodeColumn(b.quantities),
-      })),
+      baselines: baselineColumns(s.baselines),
     };
   });
   return {
@@ -128,8 +189,9 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
     if (c >= customers || c < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
   }
   for (let i = 0; i < shipments.length; i++) s.shipments.push(rowOf(shipments, i) as never);
-  if (!Array.isArray(snap.baselines)) corrupt(`series ${snap.item}: baselines must be a list`);
-  for (const b of snap.baselines) {
+  const baselines = baselineList(snap.baselines);
+  if (!baselines) corrupt(`series ${snap.item}: baselines are incomplete`);
+  for (const b of baselines) {
     const weeks = columnValues(b?.weeks);
     const quantities = columnValues(b?.quantities);
     if (!weeks || !quantities || weeks.length !== quantities.length) {

@@ -7,6 +7,21 @@ import { createLocationState } from '../../../src/sensing/location-state.ts';
 import { restoreLocationState, snapshotLocationState, type LocationStateSnapshot } from '../../../src/sensing/snapshot.ts';
 import { baseline, line, MASTER, shipment } from './helpers/records.ts';
 
+/** Version-2 baseline columns as the version-1 list of versions. */
+function baselinesAsList(c: Record<string, string>): unknown[] {
+  const col = (k: string) => decodeColumn(c[k]!)!;
+  const counts = col('weekCount');
+  const weeks = col('weeks');
+  const quantities = col('quantities');
+  let at = 0;
+  return col('version').map((version, i) => {
+    const n = counts[i]!;
+    const entry = { version, eventHash: col('eventHash')[i], publishedMs: col('publishedMs')[i], knownMs: col('knownMs')[i], knownDay: col('knownDay')[i], weeks: weeks.slice(at, at + n), quantities: quantities.slice(at, at + n) };
+    at += n;
+    return entry;
+  });
+}
+
 describe('the snapshot column form', () => {
   it('delta-codes integer columns as zigzag varints in base64', () => {
     // Deltas 1, 1, 1 → zigzag 2, 2, 2 → bytes 02 02 02 → base64 "AgIC".
@@ -54,10 +69,11 @@ describe('the snapshot column form', () => {
         ...x,
         lines: plain(x.lines),
         shipments: plain(x.shipments),
-        baselines: x.baselines.map((b) => ({ ...b, weeks: decodeColumn(b.weeks as string), quantities: decodeColumn(b.quantities as string) })),
+        baselines: baselinesAsList(x.baselines as unknown as Record<string, string>),
       })),
     };
     expect(v1.series[0]!.lines.quantity).toEqual([7, 5.5]);
+    expect(v1.series[0]!.baselines).toHaveLength(1);
     expect(snapshotLocationState(restoreLocationState(v1))).toEqual(v2);
   });
 });
