@@ -42,10 +42,26 @@ export function seriesParts(series: SeriesState, settings: SensingSettings, week
   return parts;
 }
 
-function baselineOfWeekAt(baselines: readonly BaselineVersionEntry[], weekDay: number, knownMs: number): number | undefined {
-  let best: BaselineVersionEntry | undefined;
-  for (const b of baselines) if (b.knownMs <= knownMs && (best === undefined || b.version > best.version)) best = b;
-  return weekValue(best, weekDay);
+/**
+ * The highest version known by each instant asked for, asked in non-decreasing instants (lines in knowledge
+ * order): the versions are walked once in order of knowledge instead of scanned for every line.
+ */
+class KnownVersion {
+  private readonly byKnown: BaselineVersionEntry[];
+  private next = 0;
+  private best: BaselineVersionEntry | undefined;
+
+  constructor(baselines: readonly BaselineVersionEntry[]) {
+    this.byKnown = [...baselines].sort((a, b) => (a.knownMs < b.knownMs ? -1 : a.knownMs > b.knownMs ? 1 : 0));
+  }
+
+  at(knownMs: number): BaselineVersionEntry | undefined {
+    while (this.next < this.byKnown.length && this.byKnown[this.next]!.knownMs <= knownMs) {
+      const b = this.byKnown[this.next++]!;
+      if (this.best === undefined || b.version > this.best.version) this.best = b;
+    }
+    return this.best;
+  }
 }
 
 function median(values: readonly number[]): number {
@@ -60,7 +76,16 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   const L = series.lines.cols;
   const n = series.lines.length;
   const idx = Array.from({ length: n }, (_, i) => i);
-  idx.sort((a, b) => L.knownMs[a]! - L.knownMs[b]! || L.lineHash[a]! - L.lineHash[b]! || L.revision[a]! - L.revision[b]!);
+  // Comparisons return −1/0/1 rather than differences of doubles (boxed on every call); same order.
+  idx.sort((a, b) => {
+    const ka = L.knownMs[a]!;
+    const kb = L.knownMs[b]!;
+    if (ka !== kb) return ka < kb ? -1 : 1;
+    const ha = L.lineHash[a]!;
+    const hb = L.lineHash[b]!;
+    if (ha !== hb) return ha < hb ? -1 : 1;
+    return L.revision[a]! - L.revision[b]!;
+  });
 
   const cap = 2 * n + 1;
   const knownMs = new Float64Array(cap);
@@ -79,6 +104,7 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   const seriesSizes: number[] = [];
   const seenCustomers = new Set<number>();
   let firstActivity: number | null = null;
+  const known = new KnownVersion(series.baselines);
 
   const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
     if (q === 0) return;
@@ -113,7 +139,7 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     const history = cust >= 0 ? byCustomer.get(cust) : undefined;
     const usual = history && history.length >= settings.largeLineMinHistory ? history : seriesSizes.length >= settings.largeLineMinHistory ? seriesSizes : undefined;
     if (usual && q > 0) {
-      const base = baselineOfWeekAt(series.baselines, weekStartOf(L.requestedDay[r]!, weekStart), atMs);
+      const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, weekStart));
       if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
     }
     const first = cur ? cur.first : atDay;
@@ -135,7 +161,14 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   const S = series.shipments.cols;
   const sn = series.shipments.length;
   const sIdx = Array.from({ length: sn }, (_, i) => i);
-  sIdx.sort((a, b) => S.knownMs[a]! - S.knownMs[b]! || S.shipmentHash[a]! - S.shipmentHash[b]!);
+  sIdx.sort((a, b) => {
+    const ka = S.knownMs[a]!;
+    const kb = S.knownMs[b]!;
+    if (ka !== kb) return ka < kb ? -1 : 1;
+    const ha = S.shipmentHash[a]!;
+    const hb = S.shipmentHash[b]!;
+    return ha < hb ? -1 : ha > hb ? 1 : 0;
+  });
   const lineRequested = new Map<number, number>();
   for (const [h, c] of current) lineRequested.set(h, L.requestedDay[c.row]!);
   const sh = {
