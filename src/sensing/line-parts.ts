@@ -75,7 +75,8 @@ const HISTORY = 20;
 function buildParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
   const L = series.lines.cols;
   const n = series.lines.length;
-  const idx = Array.from({ length: n }, (_, i) => i);
+  const idx: number[] = [];
+  for (let i = 0; i < n; i++) idx.push(i);
   // Comparisons return −1/0/1 rather than differences of doubles (boxed on every call); same order.
   idx.sort((a, b) => {
     const ka = L.knownMs[a]!;
@@ -87,7 +88,13 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     return L.revision[a]! - L.revision[b]!;
   });
 
-  const cap = 2 * n + 1;
+  // Every kept row emits its own part; only a row that outranks an earlier revision of its line also withdraws
+  // that one, and such a row's revision exceeds the lowest revision present: that bounds the parts exactly enough.
+  let minRevision = Infinity;
+  for (let i = 0; i < n; i++) if (L.revision[i]! < minRevision) minRevision = L.revision[i]!;
+  let withdrawals = 0;
+  for (let i = 0; i < n; i++) if (L.revision[i]! > minRevision) withdrawals++;
+  const cap = n + withdrawals + 1;
   const knownMs = new Float64Array(cap);
   const knownDay = new Int32Array(cap);
   const requestedDay = new Int32Array(cap);
@@ -99,7 +106,10 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   let m = 0;
 
   // Per line: its current row, flags and first knowledge day. Per customer: recent line sizes known so far.
-  const current = new Map<number, { row: number; flags: number; first: number }>();
+  // (The current row's flags and first knowledge day are kept by row, so a line costs no object.)
+  const current = new Map<number, number>();
+  const rowFlags = new Int32Array(n);
+  const rowFirst = new Int32Array(n);
   const byCustomer = new Map<number, number[]>();
   const seriesSizes: number[] = [];
   const seenCustomers = new Set<number>();
@@ -122,14 +132,14 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   for (const r of idx) {
     const h = L.lineHash[r]!;
     const cur = current.get(h);
-    if (cur !== undefined && L.revision[r]! <= L.revision[cur.row]!) continue; // superseded: no effect on the book
+    if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
     const atMs = L.knownMs[r]!;
     const atDay = L.knownDay[r]!;
     if (firstActivity === null || L.orderedDay[r]! < firstActivity) firstActivity = Math.min(L.orderedDay[r]!, atDay);
     const q = L.quantity[r]!;
     const cust = L.customer[r]!;
-    let f = cur ? cur.flags & PART_FIRST_FILL : 0;
-    if (!cur && cust >= 0 && !seenCustomers.has(cust)) {
+    let f = cur !== undefined ? rowFlags[cur]! & PART_FIRST_FILL : 0;
+    if (cur === undefined && cust >= 0 && !seenCustomers.has(cust)) {
       f |= PART_FIRST_FILL;
       seenCustomers.add(cust);
     }
@@ -142,10 +152,12 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
       const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, weekStart));
       if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
     }
-    const first = cur ? cur.first : atDay;
-    if (cur) emit(cur.row, -L.quantity[cur.row]!, cur.flags, first, atMs, atDay);
+    const first = cur !== undefined ? rowFirst[cur]! : atDay;
+    if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
     emit(r, q, f, first, atMs, atDay);
-    current.set(h, { row: r, flags: f, first });
+    current.set(h, r);
+    rowFlags[r] = f;
+    rowFirst[r] = first;
     if (q > 0) {
       const list = cust >= 0 ? byCustomer.get(cust) ?? [] : undefined;
       if (list) {
@@ -169,8 +181,6 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     const hb = S.shipmentHash[b]!;
     return ha < hb ? -1 : ha > hb ? 1 : 0;
   });
-  const lineRequested = new Map<number, number>();
-  for (const [h, c] of current) lineRequested.set(h, L.requestedDay[c.row]!);
   const sh = {
     n: sn,
     knownMs: new Float64Array(sn),
@@ -184,7 +194,8 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     sh.knownDay[k] = S.knownDay[r]!;
     sh.shipDay[k] = S.shipDay[r]!;
     sh.quantity[k] = S.quantity[r]!;
-    const req = S.lineHash[r]! >= 0 ? lineRequested.get(S.lineHash[r]!) : undefined;
+    const lineRow = S.lineHash[r]! >= 0 ? current.get(S.lineHash[r]!) : undefined;
+    const req = lineRow === undefined ? undefined : L.requestedDay[lineRow]!;
     sh.lagDays[k] = req === undefined ? LAG_UNKNOWN : S.shipDay[r]! - req;
     if (firstActivity === null || S.shipDay[r]! < firstActivity) firstActivity = S.shipDay[r]!;
   });
