@@ -22,9 +22,20 @@ export function dayNumber(date: string): number {
   return Math.round(ms / DAY_MS);
 }
 
+// Plans write the same few dozen dates for every series of a location: formatting through Date each time showed
+// in the recompute profile. Bounded, so a long-running process cannot grow it without limit.
+const formatted = new Map<number, string>();
+const FORMATTED_MAX = 4096;
+
 /** `YYYY-MM-DD` of a day number. */
 export function formatDay(day: number): string {
-  return new Date(day * DAY_MS).toISOString().slice(0, 10);
+  let text = formatted.get(day);
+  if (text === undefined) {
+    text = new Date(day * DAY_MS).toISOString().slice(0, 10);
+    if (formatted.size >= FORMATTED_MAX) formatted.clear();
+    formatted.set(day, text);
+  }
+  return text;
 }
 
 /** ISO 8601 weekday of a day number: 1 = Monday … 7 = Sunday (1970-01-01 was a Thursday). */

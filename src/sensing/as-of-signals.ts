@@ -199,11 +199,17 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
   // Location factor, evidence-gated with a fixed prior (one location cannot estimate its own spread). Its weekly
   // noise is the larger of its own week-to-week spread (few weeks: noisy) and the sampling noise of a median of
   // the series' ratios, (π/2)·mean variance / series (for roughly normal noise).
+  // Each sensed series' noise, once (it feeds both the location's cross-section and the series' own deviation).
+  const noise = new Float64Array(n);
   let acc = 0;
   let cnt = 0;
   for (let i = 0; i < n; i++) {
-    if (small[i]) continue;
-    acc += noiseOf(i);
+    if (small[i]) {
+      noise[i] = NaN;
+      continue;
+    }
+    noise[i] = noiseOf(i);
+    acc += noise[i]!;
     cnt++;
   }
   const crossSection = cnt > 0 ? ((Math.PI / 2) * acc) / cnt / cnt : 1;
@@ -226,11 +232,9 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
   const dvars: number[] = [];
   const deltaOf = new Float64Array(n).fill(NaN);
   const dvarOf = new Float64Array(n).fill(NaN);
-  const noise = new Float64Array(n);
   const recentRatio = new Float64Array(n).fill(NaN);
   for (let i = 0; i < n; i++) {
     const w = windows[i]!;
-    noise[i] = small[i] ? NaN : noiseOf(i);
     if (small[i] || !(factorHat > 0)) continue;
     // The series' ratio over its adaptive window, as a ratio of sums; its deviation from the location factor.
     const lvl = adaptiveLevel(w.ratios, noise[i]!, s.recentHalfLifeWeeks, s.halfLifeWeeks, s.levelSwitchFrom, s.levelSwitchTo);

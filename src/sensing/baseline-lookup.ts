@@ -74,8 +74,13 @@ export function levelRatio(v: BaselineVersionEntry, ref: BaselineVersionEntry): 
   if (!(sv > 0 && sr > 0)) return 1;
   const level = Math.log(sr / sv);
   if (logs.length < 2 || level === 0) return Math.exp(level);
-  const mean = logs.reduce((x, y) => x + y, 0) / logs.length;
-  const var1 = logs.reduce((x, y) => x + (y - mean) ** 2, 0) / (logs.length - 1);
+  // Plain loops (same left-to-right sums as a reduce from 0): this runs for every version pair of every series.
+  let sumLogs = 0;
+  for (let k = 0; k < logs.length; k++) sumLogs += logs[k]!;
+  const mean = sumLogs / logs.length;
+  let sumSq = 0;
+  for (let k = 0; k < logs.length; k++) sumSq += (logs[k]! - mean) ** 2;
+  const var1 = sumSq / (logs.length - 1);
   const se2 = var1 / logs.length;
   const keep = Math.max(0, 1 - (4 * se2) / (level * level));
   return Math.exp(keep * level);

@@ -38,6 +38,54 @@ export interface Features {
   readonly seriesFactor: number;
 }
 
+/** Order book of week p as known at the as-of moment of `lead` (large lines excluded). */
+export function bookedAt(input: SeriesInput, ctx: RecomputeContext, p: number, lead: number): number {
+  const f = input.frame;
+  return lead === 0 ? f.known0[p]! : at(f.book, ctx, p, ctx.settings.maxLead - lead);
+}
+
+/** Lead 0: demand dated up to the as-of day (large lines excluded); 0 at later leads. */
+export function toDateAt(input: SeriesInput, p: number, lead: number): number {
+  return lead === 0 ? input.frame.toDate0[p]! : 0;
+}
+
+/**
+ * Writes the FEATURE_COUNT terms into x[0 …] (a plain function over a caller's buffer: training rows call it for
+ * every series, week and lead without allocating a row object).
+ */
+export function featureTermsInto(
+  x: { [i: number]: number },
+  input: SeriesInput,
+  sig: SeriesSignal,
+  loc: LocationSignal,
+  ctx: RecomputeContext,
+  p: number,
+  lead: number,
+  baseline: number,
+  booked: number,
+  toDate: number,
+): void {
+  const s = ctx.settings;
+  const f = input.frame;
+  const tau = sig.bookShare[lead]!;
+  const R = loc.factor;
+  const q = sig.seriesFactor;
+  const decay = s.leadDecayPerWeek ** lead;
+  // Expected level of the week (decayed toward the baseline with lead), and the book beyond what that level implies.
+  const level = 1 + (R * q - 1) * decay;
+  x[0] = (booked - tau * baseline * level) / baseline;
+  x[1] = (R - 1) * decay;
+  x[2] = R * (q - 1) * decay;
+  x[3] = 0;
+  if (lead === 0) {
+    let td = ((1 - tau) * (toDate - sig.toDateShare * baseline * level)) / baseline;
+    // A censored shipment day is never a reason to adjust down.
+    if (td < 0 && censoredAsOf(f, ctx, p, ctx.firstDay + 7 * p + ctx.k)) td = 0;
+    x[3] = td;
+  }
+  x[4] = ctx.holidayLoss[p]!;
+}
+
 export function computeFeatures(
   input: SeriesInput,
   sig: SeriesSignal,
@@ -50,26 +98,14 @@ export function computeFeatures(
   const s = ctx.settings;
   const f = input.frame;
   const jc = s.maxLead - lead;
-  const booked = lead === 0 ? f.known0[p]! : at(f.book, ctx, p, jc);
+  const booked = bookedAt(input, ctx, p, lead);
   const bookedLarge = lead === 0 ? f.known0Large[p]! : at(f.bookLarge, ctx, p, jc);
-  const toDate = lead === 0 ? f.toDate0[p]! : 0;
+  const toDate = toDateAt(input, p, lead);
   const tau = sig.bookShare[lead]!;
   const R = loc.factor;
   const q = sig.seriesFactor;
-  const decay = s.leadDecayPerWeek ** lead;
-  // Expected level of the week (decayed toward the baseline with lead), and the book beyond what that level implies.
-  const level = 1 + (R * q - 1) * decay;
   const x: number[] = [0, 0, 0, 0, 0];
-  x[0] = (booked - tau * baseline * level) / baseline;
-  x[1] = (R - 1) * decay;
-  x[2] = R * (q - 1) * decay;
-  if (lead === 0) {
-    let td = ((1 - tau) * (toDate - sig.toDateShare * baseline * level)) / baseline;
-    // A censored shipment day is never a reason to adjust down.
-    if (td < 0 && censoredAsOf(f, ctx, p, ctx.firstDay + 7 * p + ctx.k)) td = 0;
-    x[3] = td;
-  }
-  x[4] = ctx.holidayLoss[p]!;
+  featureTermsInto(x, input, sig, loc, ctx, p, lead, baseline, booked, toDate);
   return {
     x,
     baseline,

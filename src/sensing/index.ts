@@ -6,6 +6,7 @@ export { applyShipment } from './apply-shipment.ts';
 export { applyBaselineVersion } from './apply-baseline.ts';
 export { applyLocationMaster, applyDayClosed } from './apply-master.ts';
 export { snapshotLocationState, restoreLocationState, cloneLocationState, STATE_SCHEMA, type LocationStateSnapshot } from './snapshot.ts';
+export { encodeColumn, decodeColumn } from './column-codec.ts';
 export { pruneLocationState, type PruneResult } from './prune.ts';
 export type { ApplyOutcome } from './outcome.ts';
 export { senseLocation, senseWork, type SenseOptions, type SenseResult, type SenseWork } from './sense-location.ts';

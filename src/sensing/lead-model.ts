@@ -7,7 +7,7 @@ import type { TrainingRows } from './training-rows.ts';
 
 /** Columns of the evidence-gated location and series level terms. */
 const GATED_TERMS = new Set([1, 2]);
-import { weightedQuantile } from '../stats/robust.ts';
+import { weightedQuantiles } from '../stats/robust.ts';
 
 /** The fitted model of one location and lead, with what the apply step and the explanation need. */
 export interface LeadModel {
@@ -37,8 +37,8 @@ export function fitLeadModel(rows: TrainingRows, survival: number, ctx: Recomput
   let fitRows = 0;
   for (let r = 0; r < rows.n; r++) if (rows.weight[r]! > 0) fitRows++;
   const fitted = fitRows >= s.minRows;
-  const lo = fitted ? weightedQuantile(rows.y, rows.weight, s.winsorLower) : 0;
-  const hi = fitted ? weightedQuantile(rows.y, rows.weight, s.winsorUpper) : 0;
+  // One sort for both winsorising bounds.
+  const [lo, hi] = fitted ? (weightedQuantiles(rows.y, rows.weight, [s.winsorLower, s.winsorUpper]) as [number, number]) : [0, 0];
   const y = new Float64Array(rows.n);
   for (let r = 0; r < rows.n; r++) y[r] = Math.min(hi, Math.max(lo, rows.y[r]!)) - 1;
 

@@ -42,10 +42,26 @@ export function seriesParts(series: SeriesState, settings: SensingSettings, week
   return parts;
 }
 
-function baselineOfWeekAt(baselines: readonly BaselineVersionEntry[], weekDay: number, knownMs: number): number | undefined {
-  let best: BaselineVersionEntry | undefined;
-  for (const b of baselines) if (b.knownMs <= knownMs && (best === undefined || b.version > best.version)) best = b;
-  return weekValue(best, weekDay);
+/**
+ * The highest version known by each instant asked for, asked in non-decreasing instants (lines in knowledge
+ * order): the versions are walked once in order of knowledge instead of scanned for every line.
+ */
+class KnownVersion {
+  private readonly byKnown: BaselineVersionEntry[];
+  private next = 0;
+  private best: BaselineVersionEntry | undefined;
+
+  constructor(baselines: readonly BaselineVersionEntry[]) {
+    this.byKnown = [...baselines].sort((a, b) => (a.knownMs < b.knownMs ? -1 : a.knownMs > b.knownMs ? 1 : 0));
+  }
+
+  at(knownMs: number): BaselineVersionEntry | undefined {
+    while (this.next < this.byKnown.length && this.byKnown[this.next]!.knownMs <= knownMs) {
+      const b = this.byKnown[this.next++]!;
+      if (this.best === undefined || b.version > this.best.version) this.best = b;
+    }
+    return this.best;
+  }
 }
 
 function median(values: readonly number[]): number {
@@ -59,10 +75,26 @@ const HISTORY = 20;
 function buildParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
   const L = series.lines.cols;
   const n = series.lines.length;
-  const idx = Array.from({ length: n }, (_, i) => i);
-  idx.sort((a, b) => L.knownMs[a]! - L.knownMs[b]! || L.lineHash[a]! - L.lineHash[b]! || L.revision[a]! - L.revision[b]!);
+  const idx: number[] = [];
+  for (let i = 0; i < n; i++) idx.push(i);
+  // Comparisons return −1/0/1 rather than differences of doubles (boxed on every call); same order.
+  idx.sort((a, b) => {
+    const ka = L.knownMs[a]!;
+    const kb = L.knownMs[b]!;
+    if (ka !== kb) return ka < kb ? -1 : 1;
+    const ha = L.lineHash[a]!;
+    const hb = L.lineHash[b]!;
+    if (ha !== hb) return ha < hb ? -1 : 1;
+    return L.revision[a]! - L.revision[b]!;
+  });
 
-  const cap = 2 * n + 1;
+  // Every kept row emits its own part; only a row that outranks an earlier revision of its line also withdraws
+  // that one, and such a row's revision exceeds the lowest revision present: that bounds the parts exactly enough.
+  let minRevision = Infinity;
+  for (let i = 0; i < n; i++) if (L.revision[i]! < minRevision) minRevision = L.revision[i]!;
+  let withdrawals = 0;
+  for (let i = 0; i < n; i++) if (L.revision[i]! > minRevision) withdrawals++;
+  const cap = n + withdrawals + 1;
   const knownMs = new Float64Array(cap);
   const knownDay = new Int32Array(cap);
   const requestedDay = new Int32Array(cap);
@@ -74,11 +106,15 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   let m = 0;
 
   // Per line: its current row, flags and first knowledge day. Per customer: recent line sizes known so far.
-  const current = new Map<number, { row: number; flags: number; first: number }>();
+  // (The current row's flags and first knowledge day are kept by row, so a line costs no object.)
+  const current = new Map<number, number>();
+  const rowFlags = new Int32Array(n);
+  const rowFirst = new Int32Array(n);
   const byCustomer = new Map<number, number[]>();
   const seriesSizes: number[] = [];
   const seenCustomers = new Set<number>();
   let firstActivity: number | null = null;
+  const known = new KnownVersion(series.baselines);
 
   const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
     if (q === 0) return;
@@ -96,14 +132,14 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   for (const r of idx) {
     const h = L.lineHash[r]!;
     const cur = current.get(h);
-    if (cur !== undefined && L.revision[r]! <= L.revision[cur.row]!) continue; // superseded: no effect on the book
+    if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
     const atMs = L.knownMs[r]!;
     const atDay = L.knownDay[r]!;
     if (firstActivity === null || L.orderedDay[r]! < firstActivity) firstActivity = Math.min(L.orderedDay[r]!, atDay);
     const q = L.quantity[r]!;
     const cust = L.customer[r]!;
-    let f = cur ? cur.flags & PART_FIRST_FILL : 0;
-    if (!cur && cust >= 0 && !seenCustomers.has(cust)) {
+    let f = cur !== undefined ? rowFlags[cur]! & PART_FIRST_FILL : 0;
+    if (cur === undefined && cust >= 0 && !seenCustomers.has(cust)) {
       f |= PART_FIRST_FILL;
       seenCustomers.add(cust);
     }
@@ -113,13 +149,15 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     const history = cust >= 0 ? byCustomer.get(cust) : undefined;
     const usual = history && history.length >= settings.largeLineMinHistory ? history : seriesSizes.length >= settings.largeLineMinHistory ? seriesSizes : undefined;
     if (usual && q > 0) {
-      const base = baselineOfWeekAt(series.baselines, weekStartOf(L.requestedDay[r]!, weekStart), atMs);
+      const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, weekStart));
       if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
     }
-    const first = cur ? cur.first : atDay;
-    if (cur) emit(cur.row, -L.quantity[cur.row]!, cur.flags, first, atMs, atDay);
+    const first = cur !== undefined ? rowFirst[cur]! : atDay;
+    if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
     emit(r, q, f, first, atMs, atDay);
-    current.set(h, { row: r, flags: f, first });
+    current.set(h, r);
+    rowFlags[r] = f;
+    rowFirst[r] = first;
     if (q > 0) {
       const list = cust >= 0 ? byCustomer.get(cust) ?? [] : undefined;
       if (list) {
@@ -135,9 +173,14 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
   const S = series.shipments.cols;
   const sn = series.shipments.length;
   const sIdx = Array.from({ length: sn }, (_, i) => i);
-  sIdx.sort((a, b) => S.knownMs[a]! - S.knownMs[b]! || S.shipmentHash[a]! - S.shipmentHash[b]!);
-  const lineRequested = new Map<number, number>();
-  for (const [h, c] of current) lineRequested.set(h, L.requestedDay[c.row]!);
+  sIdx.sort((a, b) => {
+    const ka = S.knownMs[a]!;
+    const kb = S.knownMs[b]!;
+    if (ka !== kb) return ka < kb ? -1 : 1;
+    const ha = S.shipmentHash[a]!;
+    const hb = S.shipmentHash[b]!;
+    return ha < hb ? -1 : ha > hb ? 1 : 0;
+  });
   const sh = {
     n: sn,
     knownMs: new Float64Array(sn),
@@ -151,7 +194,8 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
     sh.knownDay[k] = S.knownDay[r]!;
     sh.shipDay[k] = S.shipDay[r]!;
     sh.quantity[k] = S.quantity[r]!;
-    const req = S.lineHash[r]! >= 0 ? lineRequested.get(S.lineHash[r]!) : undefined;
+    const lineRow = S.lineHash[r]! >= 0 ? current.get(S.lineHash[r]!) : undefined;
+    const req = lineRow === undefined ? undefined : L.requestedDay[lineRow]!;
     sh.lagDays[k] = req === undefined ? LAG_UNKNOWN : S.shipDay[r]! - req;
     if (firstActivity === null || S.shipDay[r]! < firstActivity) firstActivity = S.shipDay[r]!;
   });

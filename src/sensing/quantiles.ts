@@ -12,8 +12,15 @@ export interface LeadDistribution {
   readonly phi: number;
 }
 
+const labels = new Map<number, string>();
+
 export function quantileLabel(p: number): string {
-  return `p${Math.round(p * 100)}`;
+  let label = labels.get(p);
+  if (label === undefined) {
+    label = `p${Math.round(p * 100)}`;
+    if (labels.size < 256) labels.set(p, label);
+  }
+  return label;
 }
 
 export function leadQuantiles(d: LeadDistribution, levels: readonly number[]): Record<string, number> {

@@ -1,5 +1,5 @@
 import type { RecomputeContext } from './recompute-context.ts';
-import { at, censoredAsOf } from './series-frame.ts';
+import { censoredAsOf } from './series-frame.ts';
 import { rebasedWeekBaseline, type SeriesInput } from './series-input.ts';
 
 // What one series' recent complete weeks say at as-of day j (plan date − 7j), using only what was known that day:
@@ -57,13 +57,18 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
   const asOfDay = ctx.planDay - 7 * j;
   const first = f.firstActivityDay;
   const windows = Math.max(s.recentWeeks, s.bookProfileWeeks, s.smallSeriesWeeks, s.runRateWeeks);
+  // Cumulative frame columns read inline (see `at` in series-frame.ts): this loop runs per series × as-of × week.
+  const NC = ctx.NC;
+  const stride = NC + 1;
+  const demandCol = f.demand;
+  const bookCol = f.book;
   for (let age = 0; age < windows; age++) {
     const m = age + newestAge0;
     const p = ctx.H - j - m;
     if (p < 0) break;
     const weekDay = ctx.firstDay + 7 * p;
     if (first === null || weekDay + 6 < first) continue; // before the series existed
-    const demand = at(f.demand, ctx, p, maxLead + m);
+    const demand = demandCol[p * stride + Math.min(maxLead + m, NC)]!;
     const ordinary = ctx.holidayLoss[p] === 0 && !censoredAsOf(f, ctx, p, asOfDay);
     if (age < s.runRateWeeks && ordinary) {
       const w = ctx.recentWeight[age]!;
@@ -80,7 +85,7 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
     if (age < s.bookProfileWeeks && demand > 0) {
       const w = ctx.halfLifeWeight[age]!;
       for (let L = 0; L <= maxLead; L++) {
-        const booked = L === 0 ? f.known0[p]! : at(f.book, ctx, p, maxLead - L);
+        const booked = L === 0 ? f.known0[p]! : bookCol[p * stride + Math.min(maxLead - L, NC)]!;
         bookedSum[L] = bookedSum[L]! + w * Math.min(booked, demand * 2);
       }
       toDateSum += w * f.toDate0[p]!;

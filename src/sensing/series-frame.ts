@@ -50,6 +50,13 @@ export function censoredAsOf(f: SeriesFrame, ctx: RecomputeContext, p: number, a
   return false;
 }
 
+/** Cut-point of a record known on day kd, for a week whose cut 0 is day c0 (a plain function: runs per part). */
+function cutOf(c0: number, kd: number, NC: number): number {
+  if (kd <= c0) return 0;
+  const j = Math.ceil((kd - c0) / 7);
+  return j >= NC ? NC : j;
+}
+
 export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesFrame {
   const { nWeeks, NC, firstDay, nDays, k, cutoffMs } = ctx;
   const maxLead = ctx.settings.maxLead;
@@ -75,13 +82,6 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
   const dayDue = shipBasis ? new Float64Array(nDays) : dayDemand;
   let firstActivity: number | null = null;
 
-  const cutOf = (p: number, kd: number): number => {
-    const c0 = firstDay + 7 * p + k - 7 * maxLead;
-    if (kd <= c0) return 0;
-    const j = Math.ceil((kd - c0) / 7);
-    return j >= NC ? NC : j;
-  };
-
   const shift = shipBasis && lagDays !== LAG_UNKNOWN ? lagDays : 0;
   for (let i = 0; i < parts.n; i++) {
     if (parts.knownMs[i]! > cutoffMs) break; // knowledge order: nothing later counts
@@ -100,7 +100,7 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
     if (d < 0 || d >= nDays) continue;
     const p = (d / 7) | 0;
     const large = (parts.flags[i]! & PART_LARGE) !== 0;
-    const j = cutOf(p, kd);
+    const j = cutOf(firstDay + 7 * p + k - 7 * maxLead, kd, NC);
     const bookArr = large ? bookLarge : book;
     bookArr[p * S + j] = bookArr[p * S + j]! + q;
     const knownArr = large ? known0Large : known0;
@@ -128,7 +128,7 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
       dayDemand[d] = dayDemand[d]! + q;
       if (sh.knownDay[i]! <= sh.shipDay[i]! + grace) shippedJudged[d] = shippedJudged[d]! + q;
       const p = (d / 7) | 0;
-      const cell = p * S + cutOf(p, sh.knownDay[i]!);
+      const cell = p * S + cutOf(firstDay + 7 * p + k - 7 * maxLead, sh.knownDay[i]!, NC);
       demand[cell] = demand[cell]! + q;
       const c = firstDay + 7 * p + k;
       if (sh.knownDay[i]! <= c && d + firstDay <= c) {

@@ -15,10 +15,8 @@ export interface SeriesInput {
   /** Baseline of each past frame week as known when the week ended (NaN when none covered it), and its version. */
   readonly weekBase: Float64Array;
   readonly weekBaseVersion: ReadonlyArray<BaselineVersionEntry | undefined>;
-  readonly rho: Map<BaselineVersionEntry, Map<BaselineVersionEntry, number>>;
-  /** Memo of rebasedWeekBaseline by frame week × as-of (NaN = not yet computed). */
-  readonly rebased: Float64Array;
-  readonly asOfCount: number;
+  /** The last version pair rebased and its ratio (consecutive weeks mostly pair the same two). */
+  readonly rhoLast: { v: BaselineVersionEntry | undefined; ref: BaselineVersionEntry | undefined; r: number };
 }
 
 export function prepareSeries(item: string, series: SeriesState, parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesInput {
@@ -35,35 +33,49 @@ export function prepareSeries(item: string, series: SeriesState, parts: SeriesPa
       weekBaseVersion[p] = v;
     }
   }
-  const asOfCount = ctx.J + 1;
-  return { item, series, parts, frame, ref, weekBase, weekBaseVersion, rho: new Map(), rebased: new Float64Array(ctx.nWeeks * asOfCount).fill(NaN), asOfCount };
+  return { item, series, parts, frame, ref, weekBase, weekBaseVersion, rhoLast: { v: undefined, ref: undefined, r: 1 } };
 }
 
-/** Baseline of past frame week p rebased onto the version in force at as-of j (NaN when unknown). */
+interface CachedRatio {
+  readonly vWeeks: Int32Array;
+  readonly vQuantities: Float64Array;
+  readonly refWeeks: Int32Array;
+  readonly refQuantities: Float64Array;
+  readonly r: number;
+}
+
+// Level ratios between two versions, kept across recomputes: a version's weeks never change in place (pruning
+// replaces the arrays, which the check below notices), so a close only computes the pairs its new as-of days bring.
+const ratioCache = new WeakMap<BaselineVersionEntry, Map<BaselineVersionEntry, CachedRatio>>();
+
+function cachedLevelRatio(v: BaselineVersionEntry, ref: BaselineVersionEntry): number {
+  let byRef = ratioCache.get(v);
+  if (!byRef) {
+    byRef = new Map();
+    ratioCache.set(v, byRef);
+  }
+  const hit = byRef.get(ref);
+  if (hit && hit.vWeeks === v.weeks && hit.vQuantities === v.quantities && hit.refWeeks === ref.weeks && hit.refQuantities === ref.quantities) return hit.r;
+  const r = levelRatio(v, ref);
+  byRef.set(ref, { vWeeks: v.weeks, vQuantities: v.quantities, refWeeks: ref.weeks, refQuantities: ref.quantities, r });
+  return r;
+}
+
+/**
+ * Baseline of past frame week p rebased onto the version in force at as-of j (NaN when unknown). Each (p, j) is
+ * asked for once per recompute, so only the level ratios between versions are memoised.
+ */
 export function rebasedWeekBaseline(input: SeriesInput, p: number, j: number): number {
-  const cell = p * input.asOfCount + j;
-  const memo = input.rebased[cell]!;
-  if (!Number.isNaN(memo)) return memo;
-  const value = computeRebased(input, p, j);
-  input.rebased[cell] = value;
-  return value;
-}
-
-function computeRebased(input: SeriesInput, p: number, j: number): number {
   const b = input.weekBase[p]!;
   const v = input.weekBaseVersion[p];
   const ref = input.ref[j];
   if (!Number.isFinite(b) || !v) return NaN;
   if (!ref || ref.version === v.version) return b;
-  let byRef = input.rho.get(v);
-  if (!byRef) {
-    byRef = new Map();
-    input.rho.set(v, byRef);
-  }
-  let r = byRef.get(ref);
-  if (r === undefined) {
-    r = levelRatio(v, ref);
-    byRef.set(ref, r);
-  }
+  const last = input.rhoLast;
+  if (last.v === v && last.ref === ref) return b * last.r;
+  const r = cachedLevelRatio(v, ref);
+  last.v = v;
+  last.ref = ref;
+  last.r = r;
   return b * r;
 }

@@ -1,30 +1,52 @@
 import { createLocationCalendar } from '../calendar/location-calendar.ts';
 import type { Location } from '../contracts/location.ts';
 import { NearcastError } from '../errors.ts';
+import { decodeColumn, encodeColumn } from './column-codec.ts';
 import { Table } from './columns.ts';
 import type { LocationState } from './location-state.ts';
 import { createSeriesState, LINE_COLUMNS, reindexSeries, SHIPMENT_COLUMNS, type BaselineVersionEntry, type SeriesState } from './series-state.ts';
 
 // The canonical JSON form of a location state: rows in knowledge order, customers sorted, series by item. The same
-// records applied in any arrival order give the same snapshot, byte for byte.
+// records applied in any arrival order give the same snapshot, byte for byte. Version 2 writes every numeric column
+// in the compact text form of column-codec.ts (version 1 wrote plain number lists; it still restores).
 
-export const STATE_SCHEMA = 'nearcast.sensing-state.v1';
+export const STATE_SCHEMA = 'nearcast.sensing-state.v2';
+const STATE_SCHEMA_V1 = 'nearcast.sensing-state.v1';
 
 const SAVED_LINE_COLUMNS = (({ prevSameLine: _omit, ...rest }) => rest)(LINE_COLUMNS);
 
+/** A baseline version as version 1 saved it, one object per version. */
+export interface BaselineSnapshotV1 {
+  readonly version: number;
+  readonly eventHash: number;
+  readonly publishedMs: number;
+  readonly knownMs: number;
+  readonly knownDay: number;
+  readonly weeks: number[];
+  readonly quantities: number[];
+}
+
+/**
+ * Version 2: the versions as columns (one value per version), their weeks and quantities concatenated in version
+ * order, `weekCount` weeks per version.
+ */
+export interface BaselineColumnsSnapshot {
+  readonly version: string;
+  readonly eventHash: string;
+  readonly publishedMs: string;
+  readonly knownMs: string;
+  readonly knownDay: string;
+  readonly weekCount: string;
+  readonly weeks: string;
+  readonly quantities: string;
+}
+
 export interface SeriesSnapshot {
   readonly item: string;
-  readonly lines: Record<string, number[]>;
-  readonly shipments: Record<string, number[]>;
-  readonly baselines: ReadonlyArray<{
-    readonly version: number;
-    readonly eventHash: number;
-    readonly publishedMs: number;
-    readonly knownMs: number;
-    readonly knownDay: number;
-    readonly weeks: number[];
-    readonly quantities: number[];
-  }>;
+  /** Columns in the text form of column-codec.ts (plain number lists in version 1). */
+  readonly lines: Record<string, string | number[]>;
+  readonly shipments: Record<string, string | number[]>;
+  readonly baselines: BaselineColumnsSnapshot | readonly BaselineSnapshotV1[];
 }
 
 export interface LocationStateSnapshot {
@@ -46,13 +68,64 @@ function order(n: number, cmp: (a: number, b: number) => number): number[] {
 }
 
 function columnsInOrder(table: Table<Record<string, 'f64' | 'i32'>>, names: readonly string[], idx: number[], map?: Record<string, (v: number) => number>) {
-  const out: Record<string, number[]> = {};
+  const out: Record<string, string> = {};
   for (const name of names) {
     const col = table.cols[name]!;
     const f = map?.[name];
-    out[name] = idx.map((i) => (f ? f(col[i]!) : col[i]!));
+    out[name] = encodeColumn(idx.map((i) => (f ? f(col[i]!) : col[i]!)));
   }
   return out;
+}
+
+function baselineColumns(baselines: readonly BaselineVersionEntry[]): BaselineColumnsSnapshot {
+  const weeks: number[] = [];
+  const quantities: number[] = [];
+  for (const b of baselines) {
+    for (let i = 0; i < b.weeks.length; i++) {
+      weeks.push(b.weeks[i]!);
+      quantities.push(b.quantities[i]!);
+    }
+  }
+  return {
+    version: encodeColumn(baselines.map((b) => b.version)),
+    eventHash: encodeColumn(baselines.map((b) => b.eventHash)),
+    publishedMs: encodeColumn(baselines.map((b) => b.publishedMs)),
+    knownMs: encodeColumn(baselines.map((b) => b.knownMs)),
+    knownDay: encodeColumn(baselines.map((b) => b.knownDay)),
+    weekCount: encodeColumn(baselines.map((b) => b.weeks.length)),
+    weeks: encodeColumn(weeks),
+    quantities: encodeColumn(quantities),
+  };
+}
+
+/** The saved versions as version-1 objects (either form in, undefined when damaged). */
+function baselineList(saved: unknown): BaselineSnapshotV1[] | undefined {
+  if (Array.isArray(saved)) return saved as BaselineSnapshotV1[];
+  if (saved === null || typeof saved !== 'object') return undefined;
+  const c = saved as Record<string, unknown>;
+  const [version, eventHash, publishedMs, knownMs, knownDay, weekCount, weeks, quantities] = (
+    ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay', 'weekCount', 'weeks', 'quantities'] as const
+  ).map((k) => columnValues(c[k]));
+  if (!version || !eventHash || !publishedMs || !knownMs || !knownDay || !weekCount || !weeks || !quantities) return undefined;
+  const n = version.length;
+  if ([eventHash, publishedMs, knownMs, knownDay, weekCount].some((col) => col.length !== n) || weeks.length !== quantities.length) return undefined;
+  const out: BaselineSnapshotV1[] = [];
+  let at = 0;
+  for (let i = 0; i < n; i++) {
+    const count = weekCount[i]!;
+    if (!Number.isInteger(count) || count < 0 || at + count > weeks.length) return undefined;
+    out.push({
+      version: version[i]!,
+      eventHash: eventHash[i]!,
+      publishedMs: publishedMs[i]!,
+      knownMs: knownMs[i]!,
+      knownDay: knownDay[i]!,
+      weeks: weeks.slice(at, at + count),
+      quantities: quantities.slice(at, at + count),
+    });
+    at += count;
+  }
+  return at === weeks.length ? out : undefined;
 }
 
 export function snapshotLocationState(state: LocationState): LocationStateSnapshot {
@@ -70,15 +143,7 @@ export function snapshotLocationState(state: LocationState): LocationStateSnapsh
       item,
       lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
       shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
-      baselines: s.baselines.map((b) => ({
-        version: b.version,
-        eventHash: b.eventHash,
-        publishedMs: b.publishedMs,
-        knownMs: b.knownMs,
-        knownDay: b.knownDay,
-        weeks: Array.from(b.weeks),
-        quantities: Array.from(b.quantities),
-      })),
+      baselines: baselineColumns(s.baselines),
     };
   });
   return {
@@ -98,11 +163,24 @@ function corrupt(detail: string): never {
   throw new NearcastError('NEARCAST_STATE_CORRUPT', [detail]);
 }
 
+/** A saved column's values: decoded text (version 2) or a plain list (version 1); undefined when damaged. */
+function columnValues(saved: unknown): number[] | undefined {
+  if (Array.isArray(saved)) return saved as number[];
+  return typeof saved === 'string' ? decodeColumn(saved) : undefined;
+}
+
+function tableColumns(saved: unknown): Record<string, number[] | undefined> | undefined {
+  if (saved === null || typeof saved !== 'object') return undefined;
+  const out: Record<string, number[] | undefined> = {};
+  for (const [name, col] of Object.entries(saved as Record<string, unknown>)) out[name] = columnValues(col);
+  return out;
+}
+
 function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   if (typeof snap?.item !== 'string') corrupt('a series has no item');
   const s = createSeriesState(snap.item);
-  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, snap.lines);
-  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, snap.shipments);
+  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, tableColumns(snap.lines));
+  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, tableColumns(snap.shipments));
   if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
   if (!shipments) corrupt(`series ${snap.item}: shipments are incomplete`);
   for (let i = 0; i < lines.length; i++) {
@@ -111,9 +189,12 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
     if (c >= customers || c < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
   }
   for (let i = 0; i < shipments.length; i++) s.shipments.push(rowOf(shipments, i) as never);
-  if (!Array.isArray(snap.baselines)) corrupt(`series ${snap.item}: baselines must be a list`);
-  for (const b of snap.baselines) {
-    if (!Array.isArray(b?.weeks) || !Array.isArray(b.quantities) || b.weeks.length !== b.quantities.length) {
+  const baselines = baselineList(snap.baselines);
+  if (!baselines) corrupt(`series ${snap.item}: baselines are incomplete`);
+  for (const b of baselines) {
+    const weeks = columnValues(b?.weeks);
+    const quantities = columnValues(b?.quantities);
+    if (!weeks || !quantities || weeks.length !== quantities.length) {
       corrupt(`series ${snap.item}: a baseline version has mismatched weeks`);
     }
     for (const k of ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay'] as const) {
@@ -125,8 +206,8 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
       publishedMs: b.publishedMs,
       knownMs: b.knownMs,
       knownDay: b.knownDay,
-      weeks: Int32Array.from(b.weeks),
-      quantities: Float64Array.from(b.quantities),
+      weeks: Int32Array.from(weeks),
+      quantities: Float64Array.from(quantities),
     };
     s.baselines.push(entry);
   }
@@ -144,7 +225,9 @@ function rowOf(t: Table<Record<string, 'f64' | 'i32'>>, i: number): Record<strin
 /** Rebuilds a location state from its snapshot; NEARCAST_STATE_CORRUPT says what is wrong. */
 export function restoreLocationState(snapshot: unknown): LocationState {
   const snap = snapshot as LocationStateSnapshot;
-  if (snap === null || typeof snap !== 'object' || snap.schema !== STATE_SCHEMA) corrupt(`not a ${STATE_SCHEMA} snapshot`);
+  if (snap === null || typeof snap !== 'object' || (snap.schema !== STATE_SCHEMA && (snap.schema as string) !== STATE_SCHEMA_V1)) {
+    corrupt(`not a ${STATE_SCHEMA} snapshot`);
+  }
   if (typeof snap.location !== 'string' || snap.master?.location !== snap.location) corrupt('location and master data disagree');
   if (!Array.isArray(snap.customers) || !Array.isArray(snap.series) || !Array.isArray(snap.closedDays)) corrupt('lists are missing');
   let calendar;

@@ -1,6 +1,6 @@
 import type { AsOfSignals } from './as-of-signals.ts';
 import { weekValue } from './baseline-lookup.ts';
-import { computeFeatures, FEATURE_COUNT } from './features.ts';
+import { bookedAt, featureTermsInto, FEATURE_COUNT, toDateAt } from './features.ts';
 import type { RecomputeContext } from './recompute-context.ts';
 import { at } from './series-frame.ts';
 import type { SeriesInput } from './series-input.ts';
@@ -47,6 +47,7 @@ export function trainingRows(inputs: readonly SeriesInput[], signals: readonly A
   const perDay = new Float64Array(cap);
   const recency = new Float64Array(cap);
   const small = new Uint8Array(cap);
+  const x = new Float64Array(FEATURE_COUNT);
   let m = 0;
   for (let n = 1; n <= s.lookbackWeeks; n++) {
     const j = n + lead;
@@ -62,9 +63,11 @@ export function trainingRows(inputs: readonly SeriesInput[], signals: readonly A
       if (input.frame.censored[p]) continue;
       const b = weekValue(si.ref, weekDay);
       if (b === undefined || !(b > 0)) continue;
-      const feat = computeFeatures(input, si, sig.location, ctx, p, lead, b);
+      const rowBooked = bookedAt(input, ctx, p, lead);
+      const rowToDate = toDateAt(input, p, lead);
+      featureTermsInto(x, input, si, sig.location, ctx, p, lead, b, rowBooked, rowToDate);
       const d = at(input.frame.demand, ctx, p, ctx.NC);
-      for (let c = 0; c < FEATURE_COUNT; c++) columns[c]![m] = feat.x[c]!;
+      for (let c = 0; c < FEATURE_COUNT; c++) columns[c]![m] = x[c]!;
       y[m] = d / b;
       // Small series stay out of the fit (weight 0) but their rows still inform the dispersion of their band.
       recency[m] = recencyWeight(n - 1, s.halfLifeWeeks);
@@ -74,8 +77,8 @@ export function trainingRows(inputs: readonly SeriesInput[], signals: readonly A
       weeksAgo[m] = n;
       baseline[m] = b;
       demand[m] = d;
-      booked[m] = feat.booked;
-      toDate[m] = feat.toDate;
+      booked[m] = rowBooked;
+      toDate[m] = rowToDate;
       perDay[m] = si.perDay;
       m++;
     }

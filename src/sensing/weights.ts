@@ -13,8 +13,15 @@ export function capFactors(groupTotals: ArrayLike<number>, cap: number): Float64
   for (let i = 0; i < n; i++) if (groupTotals[i]! > 0) live++;
   if (live === 0) return out;
   const effectiveCap = Math.max(cap, 1 / live);
-  const sorted = Array.from(groupTotals).filter((v) => v > 0).sort((a, b) => b - a);
-  const total = sorted.reduce((a, b) => a + b, 0);
+  // Descending totals: a native numeric sort of the positive ones, read back to front (equal totals are equal
+  // numbers, so the order among them cannot matter).
+  const ascending = new Float64Array(live);
+  for (let i = 0, k = 0; i < n; i++) if (groupTotals[i]! > 0) ascending[k++] = groupTotals[i]!;
+  ascending.sort();
+  const sorted = new Float64Array(live);
+  for (let k = 0; k < live; k++) sorted[k] = ascending[live - 1 - k]!;
+  let total = 0;
+  for (let k = 0; k < live; k++) total += sorted[k]!;
   if (sorted[0]! <= effectiveCap * total) return out;
   // With the top r groups cut to t: t = cap·(r·t + rest) ⇒ t = cap·rest / (1 − cap·r); the right r is the one
   // whose t lies between the (r+1)-th and the r-th largest total.

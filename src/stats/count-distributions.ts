@@ -199,58 +199,70 @@ function discreteQuantile(p: number, mean: number, phi: number): number {
   if (!Number.isFinite(k) || k > 1e15) k = Math.round(mean);
 
   // reached(k) ⇔ cdf(k) ≥ p; below the median through the cdf, above it through P[X > k] ≤ 1 − p, so either
-  // tail keeps its relative precision.
+  // tail keeps its relative precision. Plain functions rather than closures: this runs for every series, lead and
+  // quantile level of a recompute.
   const lower = p <= 0.5;
   const target = lower ? p : 1 - p;
-  const tail = (j: number): number => (lower ? cdfOf(j, mean, phi) : sfAbove(j, mean, phi));
-  const reached = (t: number): boolean => (lower ? t >= target : t <= target);
 
   // Near the guess: walk with the pmf recurrence (one multiply per term).
   let pmf = nbPmf(k, mean, phi);
-  let t = tail(k);
-  if (reached(t)) {
+  let t = tailAt(lower, k, mean, phi);
+  if (isReached(lower, t, target)) {
     for (let step = 0; step < MAX_WALK; step++) {
       if (k === 0) return 0;
       const before = lower ? t - pmf : t + pmf; // tail value at k − 1
-      if (!reached(before)) return k;
+      if (!isReached(lower, before, target)) return k;
       t = before;
       pmf = nbPmf(k - 1, mean, phi);
       k--;
     }
-    return bisect(k - 1, k, tail, reached);
+    return bisect(k - 1, k, lower, target, mean, phi);
   }
   for (let step = 0; step < MAX_WALK; step++) {
     pmf *= upRatio(k, mean, phi);
     k++;
     t = lower ? t + pmf : t - pmf;
-    if (pmf === 0 || t < 0) t = tail(k);
-    if (reached(t)) return k;
+    if (pmf === 0 || t < 0) t = tailAt(lower, k, mean, phi);
+    if (isReached(lower, t, target)) return k;
   }
-  return bisect(k, k + 1, tail, reached);
+  return bisect(k, k + 1, lower, target, mean, phi);
+}
+
+/** The tail the quantile search works in: P[X ≤ j] below the median, P[X > j] above it. */
+function tailAt(lower: boolean, j: number, mean: number, phi: number): number {
+  return lower ? cdfOf(j, mean, phi) : sfAbove(j, mean, phi);
+}
+
+function isReached(lower: boolean, t: number, target: number): boolean {
+  return lower ? t >= target : t <= target;
+}
+
+function reachedAt(k: number, lower: boolean, target: number, mean: number, phi: number): boolean {
+  return isReached(lower, tailAt(lower, k, mean, phi), target);
 }
 
 /**
- * Smallest k ≥ 0 with reached(tail(k)), starting from the pair (lo, hi): the bracket is widened by doubling steps
+ * Smallest k ≥ 0 with the tail reached, starting from the pair (lo, hi): the bracket is widened by doubling steps
  * until lo is unreached (or −1) and hi reached, then bisected — O(log range) tail evaluations, for skewed
  * distributions where the Cornish–Fisher guess is far off.
  */
-function bisect(lo: number, hi: number, tail: (k: number) => number, reached: (t: number) => boolean): number {
+function bisect(lo: number, hi: number, lower: boolean, target: number, mean: number, phi: number): number {
   // Establish lo unreached (or −1) and hi reached.
   let step = 1;
-  while (lo >= 0 && reached(tail(lo))) {
+  while (lo >= 0 && reachedAt(lo, lower, target, mean, phi)) {
     hi = lo;
     lo = Math.max(-1, lo - step);
     step *= 2;
   }
   step = 1;
-  while (!reached(tail(hi))) {
+  while (!reachedAt(hi, lower, target, mean, phi)) {
     lo = hi;
     hi += step;
     step *= 2;
   }
   while (hi - lo > 1) {
     const mid = Math.floor((lo + hi) / 2);
-    if (mid >= 0 && reached(tail(mid))) hi = mid;
+    if (mid >= 0 && reachedAt(mid, lower, target, mean, phi)) hi = mid;
     else lo = mid;
   }
   return hi;

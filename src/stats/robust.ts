@@ -72,7 +72,13 @@ function sortWeighted(values: ArrayLike<number>, weights?: ArrayLike<number>): S
   const idx: number[] = [];
   for (let i = 0; i < values.length; i++) if (weights === undefined || weights[i]! > 0) idx.push(i);
   if (idx.length === 0) return null;
-  idx.sort((a, b) => values[a]! - values[b]! || a - b);
+  // The comparator returns small integers, not value differences (which would be boxed on every comparison); the
+  // order is the same: by value, ties (including −0 and +0) by index.
+  idx.sort((a, b) => {
+    const va = values[a]!;
+    const vb = values[b]!;
+    return va < vb ? -1 : va > vb ? 1 : a - b;
+  });
   const n = idx.length;
   const x = new Float64Array(n);
   const w = new Float64Array(n);

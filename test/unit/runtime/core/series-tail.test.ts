@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { RecordValidator } from '../../../../src/contracts/validate.ts';
 import { createCoreModels } from '../../../../src/runtime/core-location-model.ts';
 import { joinTail, seriesSave, type SeriesSnapshot } from '../../../../src/runtime/core/series-tail.ts';
+import { decodeColumn } from '../../../../src/sensing/index.ts';
 import type { EventLogRecord } from '../../../../src/runtime/event-log-record.ts';
 import { historyStream } from '../../../../src/runtime/history/history-stream.ts';
 import { createSensingStage } from '../../../../src/runtime/sensing-stage.ts';
@@ -24,9 +25,21 @@ describe('series saved as a full save plus the rows after it', () => {
     if (first.kind !== 'full') return;
     const now = snap([10, 20, 30, 40, 50], [60]);
     const next = seriesSave(now, first.save);
-    expect(next).toEqual({ kind: 'tail', tail: { tail: 1, lines: { knownMs: [40, 50], quantity: [5, 1] }, shipments: { knownMs: [60] } } });
+    expect(next.kind).toBe('tail');
     if (next.kind !== 'tail') return;
+    // The tail is written in the sensing state's compact column form; decoded, it is exactly the appended rows.
+    const decoded = (cols: Record<string, string>) => Object.fromEntries(Object.entries(cols).map(([k, v]) => [k, decodeColumn(v)]));
+    expect(decoded(next.tail.lines)).toEqual({ knownMs: [40, 50], quantity: [5, 1] });
+    expect(decoded(next.tail.shipments)).toEqual({ knownMs: [60] });
     expect(JSON.stringify(joinTail(first.full, next.tail))).toBe(JSON.stringify(now));
+  });
+
+  it('refuses a damaged tail column with the state-corrupt error rather than restoring fewer rows', () => {
+    const first = seriesSave(snap([10, 20, 30]), undefined);
+    if (first.kind !== 'full') throw new Error('expected a full save');
+    expect(() => joinTail(first.full, { tail: 1, lines: { knownMs: '#not-a-column', quantity: '#not-a-column' }, shipments: {} })).toThrow(
+      expect.objectContaining({ code: 'NEARCAST_STATE_CORRUPT' }),
+    );
   });
 
   it('saves in full again when a saved row changed, a row sorts earlier, or a baseline arrived', () => {
