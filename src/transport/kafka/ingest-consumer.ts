@@ -8,6 +8,7 @@ import type { CrashPoints } from './crash-points.ts';
 import type { AdminPort, Batch, BatchContext, GroupConsumer, KafkaPort, OutgoingMessage, TopicPartition, TransactionalProducer } from './kafka-port.ts';
 import { deadLetterMessage } from './output-messages.ts';
 import { runTransaction } from './transaction-runner.ts';
+import { transactionalBatchOptions } from './transactional-batches.ts';
 
 // The ingest stage over Kafka: validates every input record through the runtime's ingest function and writes the
 // good ones to the event log (keyed by location, placed by our partitioner) and the bad ones to the dead-letter
@@ -60,18 +61,14 @@ export class IngestConsumer {
     this.log = options.logger.child({ component: 'ingest' });
     this.types = inputTypes(options.topics);
     this.validator = new RecordValidator(options.limits);
-    this.consumer = options.port.consumer({
-      groupId: options.groupId,
-      topics: [...this.types.keys()],
-      fromBeginning: true,
-      sessionTimeoutMs: options.sessionTimeoutMs,
-      heartbeatIntervalMs: Math.max(500, Math.floor(options.sessionTimeoutMs / 5)),
-      partitionsConsumedConcurrently: options.partitionsConsumedConcurrently,
-      // Every batch is one transaction whose cost hardly depends on its size: let the broker gather up to
-      // 256 KiB for at most 200 ms, so a busy stream commits a few large transactions rather than many small ones.
-      maxWaitTimeMs: 200,
-      minBytes: 262_144,
-    });
+    this.consumer = options.port.consumer(
+      transactionalBatchOptions({
+        groupId: options.groupId,
+        topics: [...this.types.keys()],
+        sessionTimeoutMs: options.sessionTimeoutMs,
+        partitionsConsumedConcurrently: options.partitionsConsumedConcurrently,
+      }),
+    );
   }
 
   async start(onCrash: (error: Error) => void): Promise<void> {

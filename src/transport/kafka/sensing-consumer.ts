@@ -7,6 +7,7 @@ import { ChangelogReader } from './changelog-reader.ts';
 import type { CrashPoints } from './crash-points.ts';
 import type { GroupConsumer, KafkaPort, TopicPartition } from './kafka-port.ts';
 import { SensingPartition, type LiveClockOptions } from './sensing-partition.ts';
+import { transactionalBatchOptions } from './transactional-batches.ts';
 
 // The sensing stage over Kafka: one group member consuming only the event log. Each assigned partition gets a
 // SensingPartition (paused until restored); a partition that moves away is closed, dropping its state and producer.
@@ -40,18 +41,14 @@ export class SensingConsumer {
 
   constructor(private readonly options: SensingConsumerOptions) {
     this.log = options.logger.child({ component: 'sensing' });
-    this.consumer = options.port.consumer({
-      groupId: options.groupId,
-      topics: [options.topics.events],
-      fromBeginning: true,
-      sessionTimeoutMs: options.sessionTimeoutMs,
-      heartbeatIntervalMs: Math.max(500, Math.floor(options.sessionTimeoutMs / 5)),
-      partitionsConsumedConcurrently: options.partitionsConsumedConcurrently,
-      // Every batch is one transaction whose cost hardly depends on its size: let the broker gather up to
-      // 256 KiB for at most 200 ms, so a busy stream commits a few large transactions rather than many small ones.
-      maxWaitTimeMs: 200,
-      minBytes: 262_144,
-    });
+    this.consumer = options.port.consumer(
+      transactionalBatchOptions({
+        groupId: options.groupId,
+        topics: [options.topics.events],
+        sessionTimeoutMs: options.sessionTimeoutMs,
+        partitionsConsumedConcurrently: options.partitionsConsumedConcurrently,
+      }),
+    );
     this.reader = new ChangelogReader(options.port, {
       topic: options.topics.changelog,
       groupId: `${options.groupId}.restore.${this.instanceId}`,
