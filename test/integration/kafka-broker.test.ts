@@ -126,8 +126,12 @@ describe('the Kafka test broker', () => {
     expect(await committedOffset(groupId, input)).toBe('2');
     const readCommitted = await consumeUntil({ topic: output, until: (r) => r.at(-1)?.value === 'end-marker' });
     expect(values(readCommitted)).toEqual(['out-of-in-1', 'out-of-in-2', 'end-marker']);
-    // Offsets: aborted record 0, abort marker 1, committed records 2 and 3, commit marker 4, end marker 5.
-    expect(readCommitted.map((r) => r.offset)).toEqual(['2', '3', '5']);
+    // Offsets: aborted record 0, abort marker 1 (the next transaction waits for it), committed records 2 and 3. The
+    // commit returns once the coordinator has logged its decision, and the commit marker is written to the partition
+    // after that (recalled from memory of the transaction protocol; seen here once): the end marker sent right
+    // after lands at 5 behind the commit marker, or at 4 ahead of it.
+    expect(readCommitted.slice(0, 2).map((r) => r.offset)).toEqual(['2', '3']);
+    expect(['4', '5']).toContain(readCommitted[2]!.offset);
     const readUncommitted = await consumeUntil({ topic: output, readUncommitted: true, until: (r) => r.at(-1)?.value === 'end-marker' });
     expect(values(readUncommitted)).toEqual(['must-not-be-seen', 'out-of-in-1', 'out-of-in-2', 'end-marker']);
   });
