@@ -12,7 +12,7 @@ import { pruneLocationState } from '../../src/sensing/prune.ts';
 import { senseLocation, type SenseResult } from '../../src/sensing/sense-location.ts';
 import { sensingSettings, type SensingSettings } from '../../src/sensing/settings.ts';
 import { decodeColumn } from '../../src/sensing/column-codec.ts';
-import { restoreLocationState, snapshotLocationState, type LocationStateSnapshot } from '../../src/sensing/snapshot.ts';
+import { baselineList, restoreLocationState, snapshotLocationState, type LocationStateSnapshot } from '../../src/sensing/snapshot.ts';
 import { dayNumber } from '../../src/calendar/day-number.ts';
 import { createRng, sampleNormal } from '../../src/stats/random.ts';
 import { closeOf, dayOf, generateScenario, type ScenarioRecord, type SeriesSpec } from '../../test/unit/sensing/helpers/scenario.ts';
@@ -48,25 +48,9 @@ function asPlainLists(snap: LocationStateSnapshot): unknown {
       ...x,
       lines: plain(x.lines),
       shipments: plain(x.shipments),
-      baselines: baselinesAsList(x.baselines),
+      baselines: baselineList(x.baselines),
     })),
   };
-}
-
-function baselinesAsList(b: LocationStateSnapshot['series'][number]['baselines']): unknown {
-  if (Array.isArray(b)) return b;
-  const c = b as unknown as Record<string, string>;
-  const col = (k: string) => decodeColumn(c[k]!)!;
-  const counts = col('weekCount');
-  const weeks = col('weeks');
-  const quantities = col('quantities');
-  let at = 0;
-  return col('version').map((version, i) => {
-    const n = counts[i]!;
-    const entry = { version, eventHash: col('eventHash')[i], publishedMs: col('publishedMs')[i], knownMs: col('knownMs')[i], knownDay: col('knownDay')[i], weeks: weeks.slice(at, at + n), quantities: quantities.slice(at, at + n) };
-    at += n;
-    return entry;
-  });
 }
 
 function run(label: string, count: number, withShipments: boolean, settings?: SensingSettings): void {

@@ -99,7 +99,7 @@ function baselineColumns(baselines: readonly BaselineVersionEntry[]): BaselineCo
 }
 
 /** The saved versions as version-1 objects (either form in, undefined when damaged). */
-function baselineList(saved: unknown): BaselineSnapshotV1[] | undefined {
+export function baselineList(saved: unknown): BaselineSnapshotV1[] | undefined {
   if (Array.isArray(saved)) return saved as BaselineSnapshotV1[];
   if (saved === null || typeof saved !== 'object') return undefined;
   const c = saved as Record<string, unknown>;
