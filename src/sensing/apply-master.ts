@@ -19,7 +19,10 @@ export function applyLocationMaster(state: LocationState, master: Location): App
     return rejected('NEARCAST_CALENDAR_INVALID', 'location', detail);
   }
   state.master = master;
-  for (const s of state.series.values()) s.changeCount++;
+  for (const s of state.series.values()) {
+    s.changeCount++;
+    s.layoutCount++;
+  }
   return APPLIED;
 }
 

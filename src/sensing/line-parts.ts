@@ -31,31 +31,33 @@ export interface SeriesParts {
 const LAG_UNKNOWN = -1_000_000;
 export { LAG_UNKNOWN };
 
-const cache = new WeakMap<SeriesState, { changeCount: number; settings: SensingSettings; weekStart: number; parts: SeriesParts }>();
-
-/** The parts of a series, rebuilt only when the series changed since the last call. */
-export function seriesParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
-  const hit = cache.get(series);
-  if (hit && hit.changeCount === series.changeCount && hit.settings === settings && hit.weekStart === weekStart) return hit.parts;
-  const parts = buildParts(series, settings, weekStart);
-  cache.set(series, { changeCount: series.changeCount, settings, weekStart, parts });
-  return parts;
-}
-
 /**
  * The highest version known by each instant asked for, asked in non-decreasing instants (lines in knowledge
- * order): the versions are walked once in order of knowledge instead of scanned for every line.
+ * order): the versions are walked once in order of knowledge instead of scanned for every line. Versions known
+ * after every instant asked so far can still be added.
  */
 class KnownVersion {
   private readonly byKnown: BaselineVersionEntry[];
   private next = 0;
   private best: BaselineVersionEntry | undefined;
+  /** Latest instant asked for. */
+  lastAskedMs = -Infinity;
 
   constructor(baselines: readonly BaselineVersionEntry[]) {
     this.byKnown = [...baselines].sort((a, b) => (a.knownMs < b.knownMs ? -1 : a.knownMs > b.knownMs ? 1 : 0));
   }
 
+  /** Adds a version; false when an instant already asked for would have seen it (the walk must start over). */
+  add(b: BaselineVersionEntry): boolean {
+    if (b.knownMs <= this.lastAskedMs) return false;
+    let k = this.byKnown.length;
+    while (k > this.next && this.byKnown[k - 1]!.knownMs > b.knownMs) k--;
+    this.byKnown.splice(k, 0, b);
+    return true;
+  }
+
   at(knownMs: number): BaselineVersionEntry | undefined {
+    this.lastAskedMs = knownMs;
     while (this.next < this.byKnown.length && this.byKnown[this.next]!.knownMs <= knownMs) {
       const b = this.byKnown[this.next++]!;
       if (this.best === undefined || b.version > this.best.version) this.best = b;
@@ -72,104 +74,206 @@ function median(values: readonly number[]): number {
 
 const HISTORY = 20;
 
-function buildParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
-  const L = series.lines.cols;
-  const n = series.lines.length;
-  const idx: number[] = [];
-  for (let i = 0; i < n; i++) idx.push(i);
-  // Comparisons return −1/0/1 rather than differences of doubles (boxed on every call); same order.
-  idx.sort((a, b) => {
-    const ka = L.knownMs[a]!;
-    const kb = L.knownMs[b]!;
-    if (ka !== kb) return ka < kb ? -1 : 1;
-    const ha = L.lineHash[a]!;
-    const hb = L.lineHash[b]!;
-    if (ha !== hb) return ha < hb ? -1 : 1;
-    return L.revision[a]! - L.revision[b]!;
-  });
+function grow<T extends Float64Array | Int32Array>(a: T, size: number): T {
+  if (a.length >= size) return a;
+  const next = new (a.constructor as new (n: number) => T)(Math.max(size, 2 * a.length, 16));
+  next.set(a);
+  return next;
+}
 
-  // Every kept row emits its own part; only a row that outranks an earlier revision of its line also withdraws
-  // that one, and such a row's revision exceeds the lowest revision present: that bounds the parts exactly enough.
-  let minRevision = Infinity;
-  for (let i = 0; i < n; i++) if (L.revision[i]! < minRevision) minRevision = L.revision[i]!;
-  let withdrawals = 0;
-  for (let i = 0; i < n; i++) if (L.revision[i]! > minRevision) withdrawals++;
-  const cap = n + withdrawals + 1;
-  const knownMs = new Float64Array(cap);
-  const knownDay = new Int32Array(cap);
-  const requestedDay = new Int32Array(cap);
-  const orderedDay = new Int32Array(cap);
-  const firstKnownDay = new Int32Array(cap);
-  const customer = new Int32Array(cap);
-  const flags = new Int32Array(cap);
-  const quantity = new Float64Array(cap);
-  let m = 0;
+/**
+ * Walks a series' line rows in knowledge order and emits their parts. It keeps its running state (each line's
+ * current row, customers seen, recent line sizes), so rows known after every row walked so far are appended
+ * exactly as a walk from scratch would place them: a day's new records cost their own parts, not the history's.
+ */
+class PartsWalk {
+  n = 0;
+  knownMs = new Float64Array(0);
+  knownDay = new Int32Array(0);
+  requestedDay = new Int32Array(0);
+  orderedDay = new Int32Array(0);
+  firstKnownDay = new Int32Array(0);
+  customer = new Int32Array(0);
+  flags = new Int32Array(0);
+  quantity = new Float64Array(0);
+  /** Rows of the line table walked (all rows below this index). */
+  rowsDone = 0;
+  /** Sort key of the last row walked. */
+  private lastMs = -Infinity;
+  private lastHash = -Infinity;
+  private lastRevision = -Infinity;
+  readonly current = new Map<number, number>();
+  private rowFlags = new Int32Array(0);
+  private rowFirst = new Int32Array(0);
+  private readonly byCustomer = new Map<number, number[]>();
+  private readonly seriesSizes: number[] = [];
+  private readonly seenCustomers = new Set<number>();
+  firstActivity: number | null = null;
+  readonly known: KnownVersion;
+  readonly baselinesSeen: Set<BaselineVersionEntry>;
 
-  // Per line: its current row, flags and first knowledge day. Per customer: recent line sizes known so far.
-  // (The current row's flags and first knowledge day are kept by row, so a line costs no object.)
-  const current = new Map<number, number>();
-  const rowFlags = new Int32Array(n);
-  const rowFirst = new Int32Array(n);
-  const byCustomer = new Map<number, number[]>();
-  const seriesSizes: number[] = [];
-  const seenCustomers = new Set<number>();
-  let firstActivity: number | null = null;
-  const known = new KnownVersion(series.baselines);
-
-  const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
-    if (q === 0) return;
-    knownMs[m] = atMs;
-    knownDay[m] = atDay;
-    requestedDay[m] = L.requestedDay[row]!;
-    orderedDay[m] = L.orderedDay[row]!;
-    firstKnownDay[m] = first;
-    customer[m] = L.customer[row]!;
-    flags[m] = f;
-    quantity[m] = q;
-    m++;
-  };
-
-  for (const r of idx) {
-    const h = L.lineHash[r]!;
-    const cur = current.get(h);
-    if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
-    const atMs = L.knownMs[r]!;
-    const atDay = L.knownDay[r]!;
-    if (firstActivity === null || L.orderedDay[r]! < firstActivity) firstActivity = Math.min(L.orderedDay[r]!, atDay);
-    const q = L.quantity[r]!;
-    const cust = L.customer[r]!;
-    let f = cur !== undefined ? rowFlags[cur]! & PART_FIRST_FILL : 0;
-    if (cur === undefined && cust >= 0 && !seenCustomers.has(cust)) {
-      f |= PART_FIRST_FILL;
-      seenCustomers.add(cust);
-    }
-    // Large line: far above what this customer (or, lacking history, the series) usually orders, and a large
-    // share of its week's baseline as known then. Judged only on lines known before it, so the verdict never
-    // changes with later data.
-    const history = cust >= 0 ? byCustomer.get(cust) : undefined;
-    const usual = history && history.length >= settings.largeLineMinHistory ? history : seriesSizes.length >= settings.largeLineMinHistory ? seriesSizes : undefined;
-    if (usual && q > 0) {
-      const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, weekStart));
-      if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
-    }
-    const first = cur !== undefined ? rowFirst[cur]! : atDay;
-    if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
-    emit(r, q, f, first, atMs, atDay);
-    current.set(h, r);
-    rowFlags[r] = f;
-    rowFirst[r] = first;
-    if (q > 0) {
-      const list = cust >= 0 ? byCustomer.get(cust) ?? [] : undefined;
-      if (list) {
-        list.push(q);
-        if (list.length > HISTORY) list.shift();
-        byCustomer.set(cust, list);
-      }
-      seriesSizes.push(q);
-      if (seriesSizes.length > HISTORY) seriesSizes.shift();
-    }
+  constructor(
+    readonly series: SeriesState,
+    readonly settings: SensingSettings,
+    readonly weekStart: number,
+  ) {
+    this.known = new KnownVersion(series.baselines);
+    this.baselinesSeen = new Set(series.baselines);
   }
 
+  /** Takes the series' new versions and rows; false when they do not all come after what was walked. */
+  extend(): boolean {
+    for (const b of this.series.baselines) {
+      if (this.baselinesSeen.has(b)) continue;
+      if (!this.known.add(b)) return false;
+      this.baselinesSeen.add(b);
+    }
+    if (this.baselinesSeen.size !== this.series.baselines.length) return false;
+    const L = this.series.lines.cols;
+    const n = this.series.lines.length;
+    if (n < this.rowsDone) return false;
+    const idx: number[] = [];
+    for (let i = this.rowsDone; i < n; i++) idx.push(i);
+    // Comparisons return −1/0/1 rather than differences of doubles (boxed on every call); same order.
+    idx.sort((a, b) => {
+      const ka = L.knownMs[a]!;
+      const kb = L.knownMs[b]!;
+      if (ka !== kb) return ka < kb ? -1 : 1;
+      const ha = L.lineHash[a]!;
+      const hb = L.lineHash[b]!;
+      if (ha !== hb) return ha < hb ? -1 : 1;
+      return L.revision[a]! - L.revision[b]!;
+    });
+    if (idx.length > 0) {
+      const r = idx[0]!;
+      const k = L.knownMs[r]!;
+      const h = L.lineHash[r]!;
+      const after = k > this.lastMs || (k === this.lastMs && (h > this.lastHash || (h === this.lastHash && L.revision[r]! > this.lastRevision)));
+      if (!after) return false;
+    }
+    this.walk(idx);
+    this.rowsDone = n;
+    return true;
+  }
+
+  private reserve(extra: number): void {
+    const size = this.n + extra;
+    this.knownMs = grow(this.knownMs, size);
+    this.knownDay = grow(this.knownDay, size);
+    this.requestedDay = grow(this.requestedDay, size);
+    this.orderedDay = grow(this.orderedDay, size);
+    this.firstKnownDay = grow(this.firstKnownDay, size);
+    this.customer = grow(this.customer, size);
+    this.flags = grow(this.flags, size);
+    this.quantity = grow(this.quantity, size);
+  }
+
+  private walk(idx: readonly number[]): void {
+    const L = this.series.lines.cols;
+    const settings = this.settings;
+    // A row emits its own part and, when it outranks an earlier revision, withdraws that one: two at most.
+    this.reserve(2 * idx.length);
+    this.rowFlags = grow(this.rowFlags, this.series.lines.length);
+    this.rowFirst = grow(this.rowFirst, this.series.lines.length);
+    const { current, rowFlags, rowFirst, byCustomer, seriesSizes, seenCustomers, known } = this;
+    const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
+      if (q === 0) return;
+      const m = this.n++;
+      this.knownMs[m] = atMs;
+      this.knownDay[m] = atDay;
+      this.requestedDay[m] = L.requestedDay[row]!;
+      this.orderedDay[m] = L.orderedDay[row]!;
+      this.firstKnownDay[m] = first;
+      this.customer[m] = L.customer[row]!;
+      this.flags[m] = f;
+      this.quantity[m] = q;
+    };
+
+    for (const r of idx) {
+      const h = L.lineHash[r]!;
+      this.lastMs = L.knownMs[r]!;
+      this.lastHash = h;
+      this.lastRevision = L.revision[r]!;
+      const cur = current.get(h);
+      if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
+      const atMs = L.knownMs[r]!;
+      const atDay = L.knownDay[r]!;
+      if (this.firstActivity === null || L.orderedDay[r]! < this.firstActivity) this.firstActivity = Math.min(L.orderedDay[r]!, atDay);
+      const q = L.quantity[r]!;
+      const cust = L.customer[r]!;
+      let f = cur !== undefined ? rowFlags[cur]! & PART_FIRST_FILL : 0;
+      if (cur === undefined && cust >= 0 && !seenCustomers.has(cust)) {
+        f |= PART_FIRST_FILL;
+        seenCustomers.add(cust);
+      }
+      // Large line: far above what this customer (or, lacking history, the series) usually orders, and a large
+      // share of its week's baseline as known then. Judged only on lines known before it, so the verdict never
+      // changes with later data.
+      const history = cust >= 0 ? byCustomer.get(cust) : undefined;
+      const usual = history && history.length >= settings.largeLineMinHistory ? history : seriesSizes.length >= settings.largeLineMinHistory ? seriesSizes : undefined;
+      if (usual && q > 0) {
+        const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, this.weekStart));
+        if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
+      }
+      const first = cur !== undefined ? rowFirst[cur]! : atDay;
+      if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
+      emit(r, q, f, first, atMs, atDay);
+      current.set(h, r);
+      rowFlags[r] = f;
+      rowFirst[r] = first;
+      if (q > 0) {
+        const list = cust >= 0 ? byCustomer.get(cust) ?? [] : undefined;
+        if (list) {
+          list.push(q);
+          if (list.length > HISTORY) list.shift();
+          byCustomer.set(cust, list);
+        }
+        seriesSizes.push(q);
+        if (seriesSizes.length > HISTORY) seriesSizes.shift();
+      }
+    }
+  }
+}
+
+interface CacheEntry {
+  readonly changeCount: number;
+  readonly layoutCount: number;
+  readonly walk: PartsWalk;
+  readonly parts: SeriesParts;
+}
+
+const cache = new WeakMap<SeriesState, CacheEntry>();
+
+/**
+ * The parts of a series. Rebuilt only when the series changed since the last call, and then by appending the new
+ * rows when they were all known after the rows already walked (the usual case: a day's records); a late record,
+ * a prune or a calendar change walks the whole history again.
+ */
+export function seriesParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
+  const hit = cache.get(series);
+  if (hit && hit.changeCount === series.changeCount && hit.walk.settings === settings && hit.walk.weekStart === weekStart) return hit.parts;
+  let walk = hit && hit.layoutCount === series.layoutCount && hit.walk.settings === settings && hit.walk.weekStart === weekStart ? hit.walk : undefined;
+  if (!walk || !walk.extend()) {
+    walk = new PartsWalk(series, settings, weekStart);
+    walk.extend();
+  }
+  const parts = finishParts(series, walk);
+  cache.set(series, { changeCount: series.changeCount, layoutCount: series.layoutCount, walk, parts });
+  return parts;
+}
+
+/** The parts from a fresh walk of the whole history (what the incremental path must always equal). */
+export function buildParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
+  const walk = new PartsWalk(series, settings, weekStart);
+  walk.extend();
+  return finishParts(series, walk);
+}
+
+function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
+  const L = series.lines.cols;
+  const current = walk.current;
+  let firstActivity = walk.firstActivity;
+  const m = walk.n;
   const S = series.shipments.cols;
   const sn = series.shipments.length;
   const sIdx = Array.from({ length: sn }, (_, i) => i);
@@ -202,14 +306,14 @@ function buildParts(series: SeriesState, settings: SensingSettings, weekStart: n
 
   return {
     n: m,
-    knownMs: knownMs.subarray(0, m),
-    knownDay: knownDay.subarray(0, m),
-    requestedDay: requestedDay.subarray(0, m),
-    orderedDay: orderedDay.subarray(0, m),
-    firstKnownDay: firstKnownDay.subarray(0, m),
-    customer: customer.subarray(0, m),
-    flags: flags.subarray(0, m),
-    quantity: quantity.subarray(0, m),
+    knownMs: walk.knownMs.subarray(0, m),
+    knownDay: walk.knownDay.subarray(0, m),
+    requestedDay: walk.requestedDay.subarray(0, m),
+    orderedDay: walk.orderedDay.subarray(0, m),
+    firstKnownDay: walk.firstKnownDay.subarray(0, m),
+    customer: walk.customer.subarray(0, m),
+    flags: walk.flags.subarray(0, m),
+    quantity: walk.quantity.subarray(0, m),
     shipments: sh,
     firstActivityDay: firstActivity,
   };

@@ -57,6 +57,8 @@ export interface SeriesState {
   readonly eventIds: Set<number>;
   /** Bumped on every change; derived views cache on it. */
   changeCount: number;
+  /** Bumped when rows are removed or re-indexed, or the calendar changes: views built by appending start over. */
+  layoutCount: number;
 }
 
 export function createSeriesState(item: string): SeriesState {
@@ -69,6 +71,7 @@ export function createSeriesState(item: string): SeriesState {
     baselines: [],
     eventIds: new Set(),
     changeCount: 0,
+    layoutCount: 0,
   };
 }
 
@@ -91,6 +94,7 @@ export function reindexSeries(s: SeriesState): void {
   }
   for (const b of s.baselines) s.eventIds.add(b.eventHash);
   s.changeCount++;
+  s.layoutCount++;
 }
 
 /** Highest revision stored for a line, 0 when the line is unknown. */
