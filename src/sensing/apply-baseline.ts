@@ -5,6 +5,7 @@ import type { BaselineVersion } from '../contracts/baseline-version.ts';
 import { parseTimestamp, WEEKDAYS } from '../contracts/primitives.ts';
 import { hash53 } from './hash.ts';
 import { advanceWatermark, effectiveKnownMs, isTooLate, seriesOf, type ApplyOptions, type LocationState } from './location-state.ts';
+import { noteKnown } from './knowledge-log.ts';
 import { APPLIED, DUPLICATE, rejected, SUPERSEDED, type ApplyOutcome } from './outcome.ts';
 
 /**
@@ -70,5 +71,6 @@ export function applyBaselineVersion(state: LocationState, baseline: BaselineVer
   series.eventIds.add(eventHash);
   series.changeCount++;
   advanceWatermark(state, knownMs);
+  noteKnown(state, entry.knownDay);
   return superseded ? SUPERSEDED : APPLIED;
 }

@@ -4,6 +4,7 @@ import type { OrderLine } from '../contracts/order-line.ts';
 import { parseTimestamp } from '../contracts/primitives.ts';
 import { hash53, lineKeyHash } from './hash.ts';
 import { advanceWatermark, customerIndexOf, effectiveKnownMs, isTooLate, seriesOf, type ApplyOptions, type LocationState } from './location-state.ts';
+import { noteKnown } from './knowledge-log.ts';
 import { APPLIED, DUPLICATE, rejected, SUPERSEDED, type ApplyOutcome } from './outcome.ts';
 import { hasRevision, highestRevision } from './series-state.ts';
 
@@ -50,12 +51,13 @@ export function applyOrderLine(state: LocationState, line: OrderLine, options?: 
   if (hasRevision(series, lineHash, line.revision)) return DUPLICATE;
 
   const knownMs = effectiveKnownMs(recordMs, options);
+  const knownDay = localDayOf(state.calendar, knownMs);
   const superseded = highestRevision(series, lineHash) > line.revision;
   const row = series.lines.push({
     lineHash,
     revision: line.revision,
     knownMs,
-    knownDay: localDayOf(state.calendar, knownMs),
+    knownDay,
     orderedDay: localDayOf(state.calendar, orderedMs),
     requestedDay,
     quantity,
@@ -67,5 +69,6 @@ export function applyOrderLine(state: LocationState, line: OrderLine, options?: 
   series.eventIds.add(eventHash);
   series.changeCount++;
   advanceWatermark(state, knownMs);
+  noteKnown(state, knownDay);
   return superseded ? SUPERSEDED : APPLIED;
 }

@@ -3,6 +3,7 @@ import { parseTimestamp } from '../contracts/primitives.ts';
 import type { Shipment } from '../contracts/shipment.ts';
 import { hash53, lineKeyHash } from './hash.ts';
 import { advanceWatermark, effectiveKnownMs, isTooLate, seriesOf, type ApplyOptions, type LocationState } from './location-state.ts';
+import { noteKnown } from './knowledge-log.ts';
 import { APPLIED, DUPLICATE, rejected, type ApplyOutcome } from './outcome.ts';
 
 /** Applies one shipment; idempotent by shipmentId (a second record with the same id changes nothing). */
@@ -27,11 +28,12 @@ export function applyShipment(state: LocationState, shipment: Shipment, options?
   const shipmentHash = hash53(shipment.shipmentId);
   if (series.eventIds.has(eventHash) || series.shipmentIds.has(shipmentHash)) return DUPLICATE;
   const knownMs = effectiveKnownMs(shippedMs, options);
+  const knownDay = localDayOf(state.calendar, knownMs);
   series.shipments.push({
     shipmentHash,
     eventHash,
     knownMs,
-    knownDay: localDayOf(state.calendar, knownMs),
+    knownDay,
     shipDay: localDayOf(state.calendar, shippedMs),
     quantity: shipment.quantity,
     lineHash: shipment.orderId !== undefined && shipment.lineId !== undefined ? lineKeyHash(shipment.orderId, shipment.lineId) : -1,
@@ -40,5 +42,6 @@ export function applyShipment(state: LocationState, shipment: Shipment, options?
   series.eventIds.add(eventHash);
   series.changeCount++;
   advanceWatermark(state, knownMs);
+  noteKnown(state, knownDay);
   return APPLIED;
 }

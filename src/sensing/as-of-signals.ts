@@ -25,29 +25,36 @@ export interface SmallSeriesTest {
   readonly ratio: number;
 }
 
-export interface SeriesSignal {
-  readonly window: RecentWindow;
+/** What training rows and feature audits read of a series' signal at an as-of day (kept between closes). */
+export interface TrainingSeriesSignal {
   readonly ref: BaselineVersionEntry | undefined;
-  /** Mean weekly baseline over the leads as of that day (units per week); NaN without baseline. */
-  readonly level: number;
+  /** Complete weeks since the series' first activity, as of that day. */
+  readonly historyWeeks: number;
   /** Units per business day behind the volume band. */
   readonly perDay: number;
-  readonly band: VolumeBand;
   readonly small: boolean;
   /** Typical share of the week booked by the as-of weekday, per lead (shrunk toward the location's). */
-  readonly bookShare: number[];
+  readonly bookShare: readonly number[];
   /** Typical share of the week's demand dated up to the as-of weekday (lead 0). */
   readonly toDateShare: number;
   /** Week-to-week variance of the series' ratio (relative, per week). */
   readonly noiseVar: number;
+  readonly seriesFactor: number;
+}
+
+export interface SeriesSignal extends TrainingSeriesSignal {
+  readonly window: RecentWindow;
+  /** Mean weekly baseline over the leads as of that day (units per week); NaN without baseline. */
+  readonly level: number;
+  readonly band: VolumeBand;
+  readonly bookShare: number[];
   /** Recent ratio over the adaptive window (NaN for small series or without usable weeks). */
   readonly recentRatio: number;
   /** Series deviation from the location factor and its sampling variance. */
   readonly delta: number;
   readonly deltaVar: number;
-  /** Weight given to the series' own deviation (0 … 1) and the resulting series factor. */
+  /** Weight given to the series' own deviation (0 … 1); it sets the series factor. */
   readonly evidence: number;
-  readonly seriesFactor: number;
   readonly smallTest: SmallSeriesTest | undefined;
 }
 
@@ -65,10 +72,36 @@ export interface LocationSignal {
   readonly toDateShare: number;
 }
 
-export interface AsOfSignals {
+/** The signals of every input series at one as-of day, as training rows read them. */
+export interface TrainingSignals {
+  readonly series: ReadonlyArray<TrainingSeriesSignal | undefined>;
+  readonly location: LocationSignal;
+}
+
+export interface AsOfSignals extends TrainingSignals {
   readonly j: number;
   readonly series: ReadonlyArray<SeriesSignal | undefined>;
-  readonly location: LocationSignal;
+}
+
+/** The part of the signals training rows need, without the per-week windows (what is kept between closes). */
+export function trainingPart(signals: AsOfSignals): TrainingSignals {
+  return {
+    location: signals.location,
+    series: signals.series.map((x) =>
+      x === undefined
+        ? undefined
+        : {
+            ref: x.ref,
+            historyWeeks: x.historyWeeks,
+            perDay: x.perDay,
+            small: x.small,
+            bookShare: x.bookShare,
+            toDateShare: x.toDateShare,
+            noiseVar: x.noiseVar,
+            seriesFactor: x.seriesFactor,
+          },
+    ),
+  };
 }
 
 function levelOf(ref: BaselineVersionEntry | undefined, ctx: RecomputeContext, j: number): number {
@@ -279,6 +312,7 @@ export function asOfSignals(inputs: readonly SeriesInput[], ctx: RecomputeContex
     const evidence = Number.isFinite(delta) ? evidenceWeight(delta, dvarOf[i]!, seriesPrior) : 0;
     out.push({
       window: w,
+      historyWeeks: w.historyWeeks,
       recentRatio: recentRatio[i]!,
       ref: inputs[i]!.ref[j],
       level,

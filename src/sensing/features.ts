@@ -1,4 +1,4 @@
-import type { LocationSignal, SeriesSignal } from './as-of-signals.ts';
+import type { LocationSignal, TrainingSeriesSignal } from './as-of-signals.ts';
 import type { RecomputeContext } from './recompute-context.ts';
 import { at, censoredAsOf } from './series-frame.ts';
 import type { SeriesInput } from './series-input.ts';
@@ -56,7 +56,7 @@ export function toDateAt(input: SeriesInput, p: number, lead: number): number {
 export function featureTermsInto(
   x: { [i: number]: number },
   input: SeriesInput,
-  sig: SeriesSignal,
+  sig: TrainingSeriesSignal,
   loc: LocationSignal,
   ctx: RecomputeContext,
   p: number,
@@ -88,7 +88,7 @@ export function featureTermsInto(
 
 export function computeFeatures(
   input: SeriesInput,
-  sig: SeriesSignal,
+  sig: TrainingSeriesSignal,
   loc: LocationSignal,
   ctx: RecomputeContext,
   p: number,

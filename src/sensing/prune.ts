@@ -1,4 +1,5 @@
 import { weekStartOf } from '../calendar/weeks.ts';
+import { forgetKeptSignals } from './as-of-cache.ts';
 import type { LocationState } from './location-state.ts';
 import { reindexSeries } from './series-state.ts';
 
@@ -15,6 +16,7 @@ export interface PruneResult {
  * and baseline weeks before it. Event ids go with their rows.
  */
 export function pruneLocationState(state: LocationState, asOfDay: number): PruneResult {
+  forgetKeptSignals(state);
   const cutoff = weekStartOf(asOfDay, state.calendar.weekStart) - 7 * state.retentionWeeks;
   let lineRows = 0;
   let shipments = 0;

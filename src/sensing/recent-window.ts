@@ -68,11 +68,12 @@ export function recentWindow(input: SeriesInput, ctx: RecomputeContext, j: numbe
     if (p < 0) break;
     const weekDay = ctx.firstDay + 7 * p;
     if (first === null || weekDay + 6 < first) continue; // before the series existed
-    const demand = demandCol[p * stride + Math.min(maxLead + m, NC)]!;
+    const cut = p * stride + Math.min(maxLead + m, NC);
+    const demand = demandCol[cut]!;
     const ordinary = ctx.holidayLoss[p] === 0 && !censoredAsOf(f, ctx, p, asOfDay);
     if (age < s.runRateWeeks && ordinary) {
       const w = ctx.recentWeight[age]!;
-      rrNum += w * Math.max(0, demand - f.firstFill[p]!);
+      rrNum += w * Math.max(0, demand - f.firstFill[cut]!); // first fills as known that day, like the demand
       rrDen += w;
       rrWeeks++;
     }

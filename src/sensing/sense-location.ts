@@ -3,7 +3,8 @@ import type { ManifestModel } from '../contracts/manifest.ts';
 import { PLAN_SCHEMA_VERSION, type Plan, type PlanLead } from '../contracts/plan.ts';
 import { VOLUME_BANDS } from '../stats/volume-band.ts';
 import { applyLead, type LeadOutcome } from './apply-lead.ts';
-import { asOfSignals, type AsOfSignals } from './as-of-signals.ts';
+import { keepLiveSignals, pastSignals } from './as-of-cache.ts';
+import { asOfSignals, type AsOfSignals, type TrainingSignals } from './as-of-signals.ts';
 import { dailySplit } from './daily-split.ts';
 import { flatProfile, normalise, seriesProfiles, weekdaySums } from './day-profiles.ts';
 import { FEATURE_NAMES } from './features.ts';
@@ -41,7 +42,10 @@ export interface SenseResult {
 export interface SenseWork {
   readonly ctx: RecomputeContext;
   readonly inputs: SeriesInput[];
-  readonly signals: AsOfSignals[];
+  /** Signals at the plan date (index 0 of `signals`, with the per-week windows the plans are built from). */
+  readonly live: AsOfSignals;
+  /** Signals at as-of index j (plan date − 7j), j = 0 … J: what training rows read. */
+  readonly signals: TrainingSignals[];
   readonly models: LeadModel[];
 }
 
@@ -68,12 +72,14 @@ export function senseWork(state: LocationState, asOf: AsOf, settings: SensingSet
     const input = prepareSeries(item, series, parts, ctx, lag);
     if (isActive(input, ctx)) inputs.push(input);
   }
-  const signals: AsOfSignals[] = [];
-  for (let j = 0; j <= ctx.J; j++) signals.push(asOfSignals(inputs, ctx, j));
+  const live = asOfSignals(inputs, ctx, 0);
+  keepLiveSignals(state, inputs, ctx, lag, live);
+  const signals: TrainingSignals[] = [live];
+  for (let j = 1; j <= ctx.J; j++) signals.push(pastSignals(state, inputs, ctx, j, lag));
   const survival = survivalByLead(inputs, ctx);
   const models: LeadModel[] = [];
   for (let L = 0; L <= settings.maxLead; L++) models.push(fitLeadModel(trainingRows(inputs, signals, ctx, L), survival[L]!, ctx));
-  return { ctx, inputs, signals, models };
+  return { ctx, inputs, live, signals, models };
 }
 
 /** A series is active when it has a baseline for a planned week, or anything known in the frame. */
@@ -96,9 +102,9 @@ export function senseLocation(
   options: SenseOptions = {},
 ): SenseResult {
   const work = senseWork(state, asOf, settings);
-  const { ctx, inputs, signals, models } = work;
+  const { ctx, inputs, live, models } = work;
   const selfCheck = new Set(options.selfCheckFallbacks ?? []);
-  const sig0 = signals[0]!;
+  const sig0 = live;
   const previous = new Map((options.previousPlans ?? []).map((p) => [p.item as string, p]));
 
   const demandSums = new Float64Array(8);

@@ -20,7 +20,7 @@ export interface SeriesFrame {
   readonly toDate0: Float64Array;
   /** Final quantity of lines already booked at the cut of each lead (for survival), by week × lead. */
   readonly survivingBooked: Float64Array;
-  /** First-fill orders' final quantity (excluded from run-rates). */
+  /** First-fill orders' quantity (excluded from run-rates), cumulative by cut like `book`. */
   readonly firstFill: Float64Array;
   /** Weeks with a censored shipment day judged by the as-of instant (shipments basis); see censoredAsOf. */
   readonly censored: Uint8Array;
@@ -31,6 +31,8 @@ export interface SeriesFrame {
   readonly dayIntake: Float64Array;
   /** Earliest demand date (requested date, or ship date on the shipments basis) known, null when none. */
   readonly firstActivityDay: number | null;
+  /** Earliest knowledge day among records already in the state but known after the as-of instant (∞ if none). */
+  readonly knownAfterCutoffDay: number;
 }
 
 export function cutStride(ctx: RecomputeContext): number {
@@ -70,7 +72,7 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
   const known0Large = new Float64Array(nWeeks);
   const toDate0 = new Float64Array(nWeeks);
   const survivingBooked = new Float64Array(nWeeks * (maxLead + 1));
-  const firstFill = new Float64Array(nWeeks);
+  const firstFill = new Float64Array(nWeeks * S);
   const censored = new Uint8Array(nWeeks);
   const censoredDay = new Uint8Array(nDays);
   const grace = ctx.settings.censorGraceDays;
@@ -81,10 +83,14 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
   const dayIntake = new Float64Array(nDays);
   const dayDue = shipBasis ? new Float64Array(nDays) : dayDemand;
   let firstActivity: number | null = null;
+  let knownAfterCutoffDay = Infinity;
 
   const shift = shipBasis && lagDays !== LAG_UNKNOWN ? lagDays : 0;
   for (let i = 0; i < parts.n; i++) {
-    if (parts.knownMs[i]! > cutoffMs) break; // knowledge order: nothing later counts
+    if (parts.knownMs[i]! > cutoffMs) {
+      knownAfterCutoffDay = parts.knownDay[i]!;
+      break; // knowledge order: nothing later counts
+    }
     const q = parts.quantity[i]!;
     const kd = parts.knownDay[i]!;
     const od = parts.orderedDay[i]! - firstDay;
@@ -114,13 +120,16 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
     const first = parts.firstKnownDay[i]!;
     const sb = p * (maxLead + 1);
     for (let L = 0; L <= maxLead; L++) if (first <= c - 7 * L) survivingBooked[sb + L] = survivingBooked[sb + L]! + q;
-    if (!large && (parts.flags[i]! & PART_FIRST_FILL) !== 0) firstFill[p] = firstFill[p]! + q;
+    if (!large && (parts.flags[i]! & PART_FIRST_FILL) !== 0) firstFill[p * S + j] = firstFill[p * S + j]! + q;
   }
 
   if (shipBasis) {
     const sh = parts.shipments;
     for (let i = 0; i < sh.n; i++) {
-      if (sh.knownMs[i]! > cutoffMs) break;
+      if (sh.knownMs[i]! > cutoffMs) {
+        knownAfterCutoffDay = Math.min(knownAfterCutoffDay, sh.knownDay[i]!);
+        break;
+      }
       const q = sh.quantity[i]!;
       const d = sh.shipDay[i]! - firstDay;
       if (firstActivity === null || sh.shipDay[i]! < firstActivity) firstActivity = sh.shipDay[i]!;
@@ -148,8 +157,8 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
     }
   }
 
-  for (const arr of shipBasis ? [book, bookLarge, demand, demandLarge] : [book, bookLarge]) {
+  for (const arr of shipBasis ? [book, bookLarge, firstFill, demand, demandLarge] : [book, bookLarge, firstFill]) {
     for (let p = 0; p < nWeeks; p++) for (let j = 1; j < S; j++) arr[p * S + j] = arr[p * S + j]! + arr[p * S + j - 1]!;
   }
-  return { demand, demandLarge, book, bookLarge, known0, known0Large, toDate0, survivingBooked, firstFill, censored, censoredDay, dayDemand, dayIntake, firstActivityDay: firstActivity };
+  return { demand, demandLarge, book, bookLarge, known0, known0Large, toDate0, survivingBooked, firstFill, censored, censoredDay, dayDemand, dayIntake, firstActivityDay: firstActivity, knownAfterCutoffDay };
 }

@@ -1,4 +1,4 @@
-import type { AsOfSignals } from './as-of-signals.ts';
+import type { TrainingSignals } from './as-of-signals.ts';
 import { weekValue } from './baseline-lookup.ts';
 import { bookedAt, featureTermsInto, FEATURE_COUNT, toDateAt } from './features.ts';
 import type { RecomputeContext } from './recompute-context.ts';
@@ -32,7 +32,7 @@ export interface TrainingRows {
   readonly series: number;
 }
 
-export function trainingRows(inputs: readonly SeriesInput[], signals: readonly AsOfSignals[], ctx: RecomputeContext, lead: number): TrainingRows {
+export function trainingRows(inputs: readonly SeriesInput[], signals: readonly TrainingSignals[], ctx: RecomputeContext, lead: number): TrainingRows {
   const s = ctx.settings;
   const cap = inputs.length * s.lookbackWeeks;
   const columns = Array.from({ length: FEATURE_COUNT }, () => new Float64Array(cap));
@@ -59,7 +59,7 @@ export function trainingRows(inputs: readonly SeriesInput[], signals: readonly A
       const si = sig.series[i];
       if (!si || !si.ref) continue;
       const first = input.frame.firstActivityDay;
-      if (first === null || first > weekDay || si.window.historyWeeks < s.newSeriesWeeks) continue;
+      if (first === null || first > weekDay || si.historyWeeks < s.newSeriesWeeks) continue;
       if (input.frame.censored[p]) continue;
       const b = weekValue(si.ref, weekDay);
       if (b === undefined || !(b > 0)) continue;
