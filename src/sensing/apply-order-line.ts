@@ -63,7 +63,7 @@ export function applyOrderLine(state: LocationState, line: OrderLine, options?: 
     quantity,
     customer: customerIndexOf(state, line.customer),
     eventHash,
-    prevSameLine: series.lineHeads.get(lineHash) ?? -1,
+    prevSameLine: series.lineHeads.get(lineHash),
   });
   series.lineHeads.set(lineHash, row);
   series.eventIds.add(eventHash);

@@ -1,5 +1,5 @@
 import type { LocationCalendar } from '../calendar/location-calendar.ts';
-import { asOfSignals, trainingPart, type AsOfSignals, type TrainingSignals } from './as-of-signals.ts';
+import { asOfSignals, trainingPart, type TrainingSignals } from './as-of-signals.ts';
 import { knowledgeStamp, knownSince, trimKnowledgeLog } from './knowledge-log.ts';
 import type { LocationState } from './location-state.ts';
 import type { RecomputeContext } from './recompute-context.ts';
@@ -55,7 +55,7 @@ function stillValid(k: Kept, state: LocationState, inputs: readonly SeriesInput[
   return !knownSince(state, k.stamp, day);
 }
 
-function keep(state: LocationState, inputs: readonly SeriesInput[], ctx: RecomputeContext, lag: number, day: number, signals: AsOfSignals): void {
+function keep(state: LocationState, inputs: readonly SeriesInput[], ctx: RecomputeContext, lag: number, day: number, signals: TrainingSignals): void {
   let byDay = kept.get(state);
   if (!byDay) {
     byDay = new Map();
@@ -68,7 +68,7 @@ function keep(state: LocationState, inputs: readonly SeriesInput[], ctx: Recompu
     lag,
     items: inputs.map((x) => x.item),
     first: firstDays(inputs),
-    signals: trainingPart(signals),
+    signals,
   });
   // Plan dates only move forward: no later close trains on days older than this one's oldest as-of day.
   const oldest = ctx.planDay - 7 * ctx.J;
@@ -89,7 +89,7 @@ export function pastSignals(state: LocationState, inputs: readonly SeriesInput[]
     return hit.signals;
   }
   count(state, false);
-  const signals = asOfSignals(inputs, ctx, j);
+  const signals = trainingPart(asOfSignals(inputs, ctx, j), ctx.settings.maxLead + 1);
   // The knowledge instant is past the end of day D, so these are D's final signals.
   keep(state, inputs, ctx, lag, day, signals);
   return signals;
@@ -99,7 +99,7 @@ export function pastSignals(state: LocationState, inputs: readonly SeriesInput[]
  * Keeps the plan date's own signals for later closes, when they are already that day's final ones: nothing in
  * the state known on the plan date lies after the knowledge instant (a close at 23:00 may not have seen it all).
  */
-export function keepLiveSignals(state: LocationState, inputs: readonly SeriesInput[], ctx: RecomputeContext, lag: number, live: AsOfSignals): void {
+export function keepLiveSignals(state: LocationState, inputs: readonly SeriesInput[], ctx: RecomputeContext, lag: number, live: TrainingSignals): void {
   for (const x of inputs) {
     if (x.frame.knownAfterCutoffDay <= ctx.planDay) return;
     for (const b of x.series.baselines) if (b.knownMs > ctx.cutoffMs && b.knownDay <= ctx.planDay) return;

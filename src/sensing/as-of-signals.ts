@@ -25,7 +25,7 @@ export interface SmallSeriesTest {
   readonly ratio: number;
 }
 
-/** What training rows and feature audits read of a series' signal at an as-of day (kept between closes). */
+/** What training rows and feature audits read of a series' signal at an as-of day (kept between closes as columns). */
 export interface TrainingSeriesSignal {
   readonly ref: BaselineVersionEntry | undefined;
   /** Complete weeks since the series' first activity, as of that day. */
@@ -72,36 +72,73 @@ export interface LocationSignal {
   readonly toDateShare: number;
 }
 
-/** The signals of every input series at one as-of day, as training rows read them. */
+/** What the order-book and level terms read of a series' signal (see features.ts). */
+export interface SeriesTerms {
+  readonly bookShare: ArrayLike<number>;
+  readonly toDateShare: number;
+  readonly seriesFactor: number;
+}
+
+/**
+ * The signals of every input series at one as-of day as training rows and feature audits read them, one column per
+ * field (entry i is input series i; bookShare holds `width` leads per series). Past days' signals are kept between
+ * closes for every business day of the training window: as objects they were tens of objects per series and day
+ * for the garbage collector to walk on every major collection.
+ */
 export interface TrainingSignals {
-  readonly series: ReadonlyArray<TrainingSeriesSignal | undefined>;
+  readonly location: LocationSignal;
+  readonly width: number;
+  /** 1 where the series has a signal that day. */
+  readonly present: Uint8Array;
+  readonly ref: ReadonlyArray<BaselineVersionEntry | undefined>;
+  readonly historyWeeks: Float64Array;
+  readonly perDay: Float64Array;
+  readonly small: Uint8Array;
+  readonly bookShare: Float64Array;
+  readonly toDateShare: Float64Array;
+  readonly noiseVar: Float64Array;
+  readonly seriesFactor: Float64Array;
+}
+
+export interface AsOfSignals {
+  readonly j: number;
+  readonly series: ReadonlyArray<SeriesSignal | undefined>;
   readonly location: LocationSignal;
 }
 
-export interface AsOfSignals extends TrainingSignals {
-  readonly j: number;
-  readonly series: ReadonlyArray<SeriesSignal | undefined>;
+/** The columns training rows need, without the per-week windows (what is kept between closes). */
+export function trainingPart(signals: AsOfSignals, width: number): TrainingSignals {
+  const n = signals.series.length;
+  const present = new Uint8Array(n);
+  const ref: Array<BaselineVersionEntry | undefined> = new Array(n).fill(undefined);
+  const historyWeeks = new Float64Array(n);
+  const perDay = new Float64Array(n);
+  const small = new Uint8Array(n);
+  const bookShare = new Float64Array(n * width);
+  const toDateShare = new Float64Array(n);
+  const noiseVar = new Float64Array(n);
+  const seriesFactor = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const x = signals.series[i];
+    if (x === undefined) continue;
+    present[i] = 1;
+    ref[i] = x.ref;
+    historyWeeks[i] = x.historyWeeks;
+    perDay[i] = x.perDay;
+    small[i] = x.small ? 1 : 0;
+    for (let L = 0; L < width; L++) bookShare[i * width + L] = x.bookShare[L]!;
+    toDateShare[i] = x.toDateShare;
+    noiseVar[i] = x.noiseVar;
+    seriesFactor[i] = x.seriesFactor;
+  }
+  return { location: signals.location, width, present, ref, historyWeeks, perDay, small, bookShare, toDateShare, noiseVar, seriesFactor };
 }
 
-/** The part of the signals training rows need, without the per-week windows (what is kept between closes). */
-export function trainingPart(signals: AsOfSignals): TrainingSignals {
-  return {
-    location: signals.location,
-    series: signals.series.map((x) =>
-      x === undefined
-        ? undefined
-        : {
-            ref: x.ref,
-            historyWeeks: x.historyWeeks,
-            perDay: x.perDay,
-            small: x.small,
-            bookShare: x.bookShare,
-            toDateShare: x.toDateShare,
-            noiseVar: x.noiseVar,
-            seriesFactor: x.seriesFactor,
-          },
-    ),
-  };
+/** Series i's terms from the columns (undefined where it has no signal that day). */
+export function seriesTermsAt(signals: TrainingSignals, i: number): SeriesTerms | undefined {
+  if (!signals.present[i]) return undefined;
+  const w = signals.width;
+  return { bookShare: signals.bookShare.subarray(i * w, i * w + w), toDateShare: signals.toDateShare[i]!, seriesFactor: signals.seriesFactor[i]! };
 }
 
 function levelOf(ref: BaselineVersionEntry | undefined, ctx: RecomputeContext, j: number): number {

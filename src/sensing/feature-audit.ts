@@ -1,4 +1,5 @@
 import { weekValue } from './baseline-lookup.ts';
+import { seriesTermsAt } from './as-of-signals.ts';
 import { computeFeatures, type Features } from './features.ts';
 import type { SenseWork } from './sense-location.ts';
 
@@ -12,9 +13,9 @@ export function featuresAt(work: SenseWork, item: string, weekIndex: number, lea
   const j = lead - weekIndex;
   if (i < 0 || j < 0 || j > work.ctx.J) return undefined;
   const sig = work.signals[j]!;
-  const si = sig.series[i];
+  const si = seriesTermsAt(sig, i);
   const p = work.ctx.H + weekIndex;
-  const b = weekValue(si?.ref, work.ctx.week0 + 7 * weekIndex);
+  const b = weekValue(sig.ref[i], work.ctx.week0 + 7 * weekIndex);
   if (!si || b === undefined || !(b > 0)) return undefined;
   return computeFeatures(work.inputs[i]!, si, sig.location, work.ctx, p, lead, b);
 }

@@ -1,4 +1,4 @@
-import type { LocationSignal, TrainingSeriesSignal } from './as-of-signals.ts';
+import type { LocationSignal, SeriesTerms } from './as-of-signals.ts';
 import type { RecomputeContext } from './recompute-context.ts';
 import { at, censoredAsOf } from './series-frame.ts';
 import type { SeriesInput } from './series-input.ts';
@@ -56,7 +56,9 @@ export function toDateAt(input: SeriesInput, p: number, lead: number): number {
 export function featureTermsInto(
   x: { [i: number]: number },
   input: SeriesInput,
-  sig: TrainingSeriesSignal,
+  tau: number,
+  toDateShare: number,
+  q: number,
   loc: LocationSignal,
   ctx: RecomputeContext,
   p: number,
@@ -67,9 +69,7 @@ export function featureTermsInto(
 ): void {
   const s = ctx.settings;
   const f = input.frame;
-  const tau = sig.bookShare[lead]!;
   const R = loc.factor;
-  const q = sig.seriesFactor;
   const decay = s.leadDecayPerWeek ** lead;
   // Expected level of the week (decayed toward the baseline with lead), and the book beyond what that level implies.
   const level = 1 + (R * q - 1) * decay;
@@ -78,7 +78,7 @@ export function featureTermsInto(
   x[2] = R * (q - 1) * decay;
   x[3] = 0;
   if (lead === 0) {
-    let td = ((1 - tau) * (toDate - sig.toDateShare * baseline * level)) / baseline;
+    let td = ((1 - tau) * (toDate - toDateShare * baseline * level)) / baseline;
     // A censored shipment day is never a reason to adjust down.
     if (td < 0 && censoredAsOf(f, ctx, p, ctx.firstDay + 7 * p + ctx.k)) td = 0;
     x[3] = td;
@@ -88,7 +88,7 @@ export function featureTermsInto(
 
 export function computeFeatures(
   input: SeriesInput,
-  sig: TrainingSeriesSignal,
+  sig: SeriesTerms,
   loc: LocationSignal,
   ctx: RecomputeContext,
   p: number,
@@ -105,7 +105,7 @@ export function computeFeatures(
   const R = loc.factor;
   const q = sig.seriesFactor;
   const x: number[] = [0, 0, 0, 0, 0];
-  featureTermsInto(x, input, sig, loc, ctx, p, lead, baseline, booked, toDate);
+  featureTermsInto(x, input, tau, sig.toDateShare, q, loc, ctx, p, lead, baseline, booked, toDate);
   return {
     x,
     baseline,

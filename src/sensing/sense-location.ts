@@ -4,7 +4,7 @@ import { PLAN_SCHEMA_VERSION, type Plan, type PlanLead } from '../contracts/plan
 import { VOLUME_BANDS } from '../stats/volume-band.ts';
 import { applyLead, type LeadOutcome } from './apply-lead.ts';
 import { keepLiveSignals, pastSignals } from './as-of-cache.ts';
-import { asOfSignals, type AsOfSignals, type TrainingSignals } from './as-of-signals.ts';
+import { asOfSignals, trainingPart, type AsOfSignals, type TrainingSignals } from './as-of-signals.ts';
 import { dailySplit } from './daily-split.ts';
 import { flatProfile, normalise, seriesProfiles, weekdaySums } from './day-profiles.ts';
 import { FEATURE_NAMES } from './features.ts';
@@ -73,8 +73,9 @@ export function senseWork(state: LocationState, asOf: AsOf, settings: SensingSet
     if (isActive(input, ctx)) inputs.push(input);
   }
   const live = asOfSignals(inputs, ctx, 0);
-  keepLiveSignals(state, inputs, ctx, lag, live);
-  const signals: TrainingSignals[] = [live];
+  const liveColumns = trainingPart(live, settings.maxLead + 1);
+  keepLiveSignals(state, inputs, ctx, lag, liveColumns);
+  const signals: TrainingSignals[] = [liveColumns];
   for (let j = 1; j <= ctx.J; j++) signals.push(pastSignals(state, inputs, ctx, j, lag));
   const survival = survivalByLead(inputs, ctx);
   const models: LeadModel[] = [];

@@ -36,28 +36,22 @@ export function prepareSeries(item: string, series: SeriesState, parts: SeriesPa
   return { item, series, parts, frame, ref, weekBase, weekBaseVersion, rhoLast: { v: undefined, ref: undefined, r: 1 } };
 }
 
-interface CachedRatio {
-  readonly vWeeks: Int32Array;
-  readonly vQuantities: Float64Array;
-  readonly refWeeks: Int32Array;
-  readonly refQuantities: Float64Array;
-  readonly r: number;
-}
-
-// Level ratios between two versions, kept across recomputes: a version's weeks never change in place (pruning
-// replaces the arrays, which the check below notices), so a close only computes the pairs its new as-of days bring.
-const ratioCache = new WeakMap<BaselineVersionEntry, Map<BaselineVersionEntry, CachedRatio>>();
+// Level ratios between two versions, kept across recomputes and keyed by the versions' quantity arrays: a
+// version's weeks and quantities never change in place (pruning replaces both arrays together), so a replaced
+// version simply misses, and a close only computes the pairs its new as-of days bring. Plain numbers in maps keyed
+// by arrays: no object per pair for the garbage collector to walk.
+const ratioCache = new WeakMap<Float64Array, Map<Float64Array, number>>();
 
 function cachedLevelRatio(v: BaselineVersionEntry, ref: BaselineVersionEntry): number {
-  let byRef = ratioCache.get(v);
+  let byRef = ratioCache.get(v.quantities);
   if (!byRef) {
     byRef = new Map();
-    ratioCache.set(v, byRef);
+    ratioCache.set(v.quantities, byRef);
   }
-  const hit = byRef.get(ref);
-  if (hit && hit.vWeeks === v.weeks && hit.vQuantities === v.quantities && hit.refWeeks === ref.weeks && hit.refQuantities === ref.quantities) return hit.r;
+  const hit = byRef.get(ref.quantities);
+  if (hit !== undefined) return hit;
   const r = levelRatio(v, ref);
-  byRef.set(ref, { vWeeks: v.weeks, vQuantities: v.quantities, refWeeks: ref.weeks, refQuantities: ref.quantities, r });
+  byRef.set(ref.quantities, r);
   return r;
 }
 

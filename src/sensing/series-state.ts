@@ -1,3 +1,4 @@
+import { HashIndex } from './hash-index.ts';
 import { Table } from './columns.ts';
 
 // One series (location, item): its order-line revisions, shipments and baseline versions, each stored with the
@@ -49,12 +50,12 @@ export interface SeriesState {
   readonly item: string;
   readonly lines: LineTable;
   /** Last row (in arrival order) of each line, by line hash. */
-  readonly lineHeads: Map<number, number>;
+  readonly lineHeads: HashIndex;
   readonly shipments: ShipmentTable;
-  readonly shipmentIds: Set<number>;
+  readonly shipmentIds: HashIndex;
   /** Sorted by version ascending. */
   readonly baselines: BaselineVersionEntry[];
-  readonly eventIds: Set<number>;
+  readonly eventIds: HashIndex;
   /** Bumped on every change; derived views cache on it. */
   changeCount: number;
   /** Bumped when rows are removed or re-indexed, or the calendar changes: views built by appending start over. */
@@ -65,11 +66,11 @@ export function createSeriesState(item: string): SeriesState {
   return {
     item,
     lines: new Table(LINE_COLUMNS, 8),
-    lineHeads: new Map(),
+    lineHeads: new HashIndex(),
     shipments: new Table(SHIPMENT_COLUMNS, 4),
-    shipmentIds: new Set(),
+    shipmentIds: new HashIndex(),
     baselines: [],
-    eventIds: new Set(),
+    eventIds: new HashIndex(),
     changeCount: 0,
     layoutCount: 0,
   };
@@ -83,7 +84,7 @@ export function reindexSeries(s: SeriesState): void {
   const L = s.lines.cols;
   for (let i = 0; i < s.lines.length; i++) {
     const h = L.lineHash[i]!;
-    L.prevSameLine[i] = s.lineHeads.get(h) ?? -1;
+    L.prevSameLine[i] = s.lineHeads.get(h);
     s.lineHeads.set(h, i);
     s.eventIds.add(L.eventHash[i]!);
   }
@@ -100,14 +101,14 @@ export function reindexSeries(s: SeriesState): void {
 /** Highest revision stored for a line, 0 when the line is unknown. */
 export function highestRevision(s: SeriesState, lineHash: number): number {
   let best = 0;
-  for (let i = s.lineHeads.get(lineHash) ?? -1; i >= 0; i = s.lines.cols.prevSameLine[i]!) {
+  for (let i = s.lineHeads.get(lineHash); i >= 0; i = s.lines.cols.prevSameLine[i]!) {
     if (s.lines.cols.revision[i]! > best) best = s.lines.cols.revision[i]!;
   }
   return best;
 }
 
 export function hasRevision(s: SeriesState, lineHash: number, revision: number): boolean {
-  for (let i = s.lineHeads.get(lineHash) ?? -1; i >= 0; i = s.lines.cols.prevSameLine[i]!) {
+  for (let i = s.lineHeads.get(lineHash); i >= 0; i = s.lines.cols.prevSameLine[i]!) {
     if (s.lines.cols.revision[i] === revision) return true;
   }
   return false;

@@ -54,32 +54,35 @@ export function trainingRows(inputs: readonly SeriesInput[], signals: readonly T
     const sig = signals[j]!;
     const p = ctx.H - n;
     const weekDay = ctx.firstDay + 7 * p;
+    const rowRecency = recencyWeight(n - 1, s.halfLifeWeeks);
+    const width = sig.width;
     for (let i = 0; i < inputs.length; i++) {
       const input = inputs[i]!;
-      const si = sig.series[i];
-      if (!si || !si.ref) continue;
+      const ref = sig.ref[i];
+      if (!sig.present[i] || !ref) continue;
       const first = input.frame.firstActivityDay;
-      if (first === null || first > weekDay || si.historyWeeks < s.newSeriesWeeks) continue;
+      if (first === null || first > weekDay || sig.historyWeeks[i]! < s.newSeriesWeeks) continue;
       if (input.frame.censored[p]) continue;
-      const b = weekValue(si.ref, weekDay);
+      const b = weekValue(ref, weekDay);
       if (b === undefined || !(b > 0)) continue;
       const rowBooked = bookedAt(input, ctx, p, lead);
       const rowToDate = toDateAt(input, p, lead);
-      featureTermsInto(x, input, si, sig.location, ctx, p, lead, b, rowBooked, rowToDate);
+      featureTermsInto(x, input, sig.bookShare[i * width + lead]!, sig.toDateShare[i]!, sig.seriesFactor[i]!, sig.location, ctx, p, lead, b, rowBooked, rowToDate);
       const d = at(input.frame.demand, ctx, p, ctx.NC);
       for (let c = 0; c < FEATURE_COUNT; c++) columns[c]![m] = x[c]!;
       y[m] = d / b;
       // Small series stay out of the fit (weight 0) but their rows still inform the dispersion of their band.
-      recency[m] = recencyWeight(n - 1, s.halfLifeWeeks);
-      weight[m] = si.small ? 0 : recency[m]! / si.noiseVar;
-      small[m] = si.small ? 1 : 0;
+      recency[m] = rowRecency;
+      const isSmall = sig.small[i]!;
+      weight[m] = isSmall ? 0 : rowRecency / sig.noiseVar[i]!;
+      small[m] = isSmall;
       seriesIndex[m] = i;
       weeksAgo[m] = n;
       baseline[m] = b;
       demand[m] = d;
       booked[m] = rowBooked;
       toDate[m] = rowToDate;
-      perDay[m] = si.perDay;
+      perDay[m] = sig.perDay[i]!;
       m++;
     }
   }
