@@ -38,20 +38,26 @@ export function prepareSeries(item: string, series: SeriesState, parts: SeriesPa
 
 // Level ratios between two versions, kept across recomputes and keyed by the versions' quantity arrays: a
 // version's weeks and quantities never change in place (pruning replaces both arrays together), so a replaced
-// version simply misses, and a close only computes the pairs its new as-of days bring. Plain numbers in maps keyed
-// by arrays: no object per pair for the garbage collector to walk.
-const ratioCache = new WeakMap<Float64Array, Map<Float64Array, number>>();
+// version simply misses, and a close only computes the pairs its new as-of days bring. A version meets a handful of
+// others, so a short list searched in order beats a Map (whose table and boxed numbers the collector walks).
+interface PairedRatios {
+  readonly refs: Float64Array[];
+  /** Unboxed doubles (a packed double array). */
+  readonly r: number[];
+}
+const ratioCache = new WeakMap<Float64Array, PairedRatios>();
 
 function cachedLevelRatio(v: BaselineVersionEntry, ref: BaselineVersionEntry): number {
-  let byRef = ratioCache.get(v.quantities);
-  if (!byRef) {
-    byRef = new Map();
-    ratioCache.set(v.quantities, byRef);
+  let pairs = ratioCache.get(v.quantities);
+  if (!pairs) {
+    pairs = { refs: [], r: [] };
+    ratioCache.set(v.quantities, pairs);
   }
-  const hit = byRef.get(ref.quantities);
-  if (hit !== undefined) return hit;
+  const at = pairs.refs.indexOf(ref.quantities);
+  if (at >= 0) return pairs.r[at]!;
   const r = levelRatio(v, ref);
-  byRef.set(ref.quantities, r);
+  pairs.refs.push(ref.quantities);
+  pairs.r.push(r);
   return r;
 }
 
