@@ -8,17 +8,12 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { Session } from 'node:inspector/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { RecordValidator } from '../../src/contracts/validate.ts';
-import { writeHistory } from '../../src/demo/write-history.ts';
 import { createCoreModels } from '../../src/runtime/core-location-model.ts';
 import type { EventLogRecord } from '../../src/runtime/event-log-record.ts';
-import { historyStream } from '../../src/runtime/history/history-stream.ts';
-import { addDays, isBusinessDay, localDateOf } from '../../src/runtime/local-day.ts';
-import { newRuntimeState } from '../../src/runtime/location-runtime-state.ts';
+import { localDateOf } from '../../src/runtime/local-day.ts';
 import { createSensingStage } from '../../src/runtime/sensing-stage.ts';
-import { DEFAULT_STAGE_SETTINGS } from '../../src/runtime/stage-settings.ts';
 import { EmbeddedStore } from '../../src/transport/embedded/embedded-store.ts';
-import { benchHistory } from './bench-history.ts';
+import { benchChangelog, buildBenchLocation, type BenchLocation } from './bench-state.ts';
 
 /** BENCH_PROFILE=path writes a CPU profile of the measured (last) close only (path.<series>.cpuprofile). */
 const profiler = process.env.BENCH_PROFILE ? new Session() : undefined;
@@ -29,60 +24,25 @@ if (profiler) {
 const series = Number(process.env.NEARCAST_BENCH_SERIES ?? 10_000);
 const ms = (a: number, b: number) => `${(b - a).toFixed(0)} ms`;
 
-const t0 = performance.now();
-// Only what a running stage holds stays in memory: the generated history is written out and dropped, the model
-// that built the state is dropped once its changelog exists (a 10k-series state is hundreds of megabytes).
-const input = mkdtempSync(path.join(tmpdir(), 'nc-bench-close-'));
-const { master, scenario } = (() => {
-  const { history, scenario } = benchHistory({ centres: 1, itemsPerCentre: series, weeks: 13 });
-  writeHistory(input, history);
-  return { master: history.locations[0] as EventLogRecord['record'] & { location: string; timeZone: string }, scenario };
-})();
 const models = createCoreModels({ demandBasis: 'orders' });
-let model: ReturnType<typeof models.create> | undefined = models.create(master as never);
-// The last business day of the history is the day measured; the six business days up to it are closed one by one
-// with their own records in between, as a running stage does (their records are held back from the built state).
-const businessDays: string[] = [];
-for (let d = scenario.cutAt.slice(0, 10); businessDays.length < 6; ) {
-  d = addDays(d, -1);
-  if (isBusinessDay(master as never, d)) businessDays.unshift(d);
-}
-const day = businessDays[businessDays.length - 1]!;
-const firstClosed = businessDays[0]!;
-let facts = 0;
-let lastFact: EventLogRecord | undefined;
-const held: EventLogRecord[] = [];
-const t1 = performance.now();
-for await (const r of historyStream(input, { validator: new RecordValidator(), settings: DEFAULT_STAGE_SETTINGS, onRejected: () => {} })) {
-  if (r.kind !== 'order-line' && r.kind !== 'shipment' && r.kind !== 'baseline-version') continue;
-  const arrived = localDateOf(r.arrivalMs, master.timeZone);
-  if (arrived > day) continue;
-  if (arrived >= firstClosed) held.push(r);
-  else {
-    model!.apply(r);
-    facts++;
-    lastFact = r;
-  }
-}
-const t2 = performance.now();
-console.log(`state: ${series} series, ${facts} records applied in ${ms(t1, t2)} (${((facts / (t2 - t1)) * 1000).toFixed(0)} records/s; history generated in ${ms(t0, t1)}); ${held.length} records of the last ${businessDays.length} business days held back`);
-
-const runtime = { ...newRuntimeState(master as never, lastFact!.arrivalMs), nextDate: firstClosed, lastFeedArrivalMs: lastFact!.arrivalMs };
+// The six business days up to the history's last are closed one by one with their own records in between, as a
+// running stage does (their records are held back from the built state). The model that built the state is
+// dropped once its changelog exists (a 10k-series state is hundreds of megabytes).
+let built: BenchLocation | undefined = await buildBenchLocation(series, models, 13, 6);
+const { master, lastFact, day, facts, held, heldDays: businessDays } = built;
+console.log(
+  `state: ${series} series, ${facts} records applied in ${built.applyMs.toFixed(0)} ms (${((facts / built.applyMs) * 1000).toFixed(0)} records/s; history generated in ${built.generateMs.toFixed(0)} ms); ${held.length} records of the last ${businessDays.length} business days held back`,
+);
 
 // The changelog as a running stage leaves it: the location's base entry and one entry per part.
 const t3 = performance.now();
-const { base, parts } = model.snapshotParts!();
-model = undefined;
-let entries: { key: string; value: string }[] | undefined = [
-  { key: master.location, value: JSON.stringify({ runtime, model: base, parted: true }) },
-  ...[...parts].map(([k, v]) => ({ key: `${master.location}|${k}`, value: JSON.stringify(v) })),
-  { key: '#partition', value: JSON.stringify({ partition: 0, nextOffset: '0' }) },
-];
+let entries: { key: string; value: string | null }[] | undefined = benchChangelog(built);
+built = undefined;
 const t4 = performance.now();
 const stage = createSensingStage({ partition: 0, models });
 stage.restore(entries);
 const t5 = performance.now();
-const bytes = entries.reduce((t, e) => t + e.value.length, 0);
+const bytes = entries.reduce((t, e) => t + (e.value?.length ?? 0), 0);
 const count = entries.length;
 entries = undefined;
 console.log(`changelog: ${count} entries, ${(bytes / 1e6).toFixed(1)} MB, written in ${ms(t3, t4)}; stage restored from it in ${ms(t4, t5)}`);
@@ -104,7 +64,7 @@ const closeRecord = (date: string, atMs: number): EventLogRecord => ({
 });
 const closes: { date: string; wallMs: number; cpuMs: number }[] = [];
 let result: ReturnType<typeof stage.apply> | undefined;
-let lastMs = lastFact!.arrivalMs;
+let lastMs = lastFact.arrivalMs;
 for (const date of businessDays) {
   const todays = held.filter((r) => localDateOf(r.arrivalMs, master.timeZone) <= date && r.arrivalMs > (closes.length === 0 ? -Infinity : lastMs));
   if (todays.length > 0) applyBatch(todays);
@@ -145,5 +105,4 @@ stage.commit();
 store.close();
 console.log(`embedded commit of that batch (outputs + changelog, one SQLite transaction): ${ms(t8, t9)}`);
 console.log(`close → committed manifest, embedded: ${(last.wallMs + t9 - t8).toFixed(0)} ms (target < 2000 ms)`);
-rmSync(input, { recursive: true, force: true });
 rmSync(dbDir, { recursive: true, force: true });

@@ -7,7 +7,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
-const ALL = ['monitoring', 'sensing', 'backtest', 'close', 'kafka-ingest'];
+const ALL = ['monitoring', 'sensing', 'backtest', 'close', 'kafka-ingest', 'restore'];
 const chosen = process.argv.slice(2).length > 0 ? process.argv.slice(2) : ALL;
 let failed = 0;
 for (const name of chosen) {
