@@ -73,20 +73,30 @@ export class Table<S extends ColumnSpec> {
     return out;
   }
 
-  /** Rebuilds a table from `toJSON()` output; returns undefined when a column is missing or lengths differ. */
-  static fromJSON<S extends ColumnSpec>(spec: S, data: unknown): Table<S> | undefined {
+  /**
+   * Rebuilds a table from `toJSON()` output; returns undefined when a column is missing or lengths differ. Columns
+   * named in `unsaved` are not read: every row gets the value given (an index the caller rebuilds after).
+   */
+  static fromJSON<S extends ColumnSpec>(spec: S, data: unknown, unsaved: Partial<Record<keyof S & string, number>> = {}): Table<S> | undefined {
     if (data === null || typeof data !== 'object') return undefined;
     const rec = data as Record<string, unknown>;
     let n = -1;
     for (const name of Object.keys(spec)) {
+      if (name in unsaved) continue;
       const col = rec[name];
       if (!Array.isArray(col) || !col.every((v) => typeof v === 'number' && Number.isFinite(v))) return undefined;
       if (n >= 0 && col.length !== n) return undefined;
       n = col.length;
     }
-    const t = new Table(spec, Math.max(8, n));
-    for (const name of Object.keys(spec)) (t.cols[name] as Float64Array | Int32Array).set(rec[name] as number[]);
-    t.length = Math.max(0, n);
+    const length = Math.max(0, n);
+    const t = new Table(spec, Math.max(8, length));
+    for (const name of Object.keys(spec)) {
+      const col = t.cols[name] as Float64Array | Int32Array;
+      const fill = (unsaved as Record<string, number | undefined>)[name];
+      if (fill === undefined) col.set(rec[name] as number[]);
+      else col.fill(fill, 0, length);
+    }
+    t.length = length;
     return t;
   }
 }

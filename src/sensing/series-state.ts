@@ -62,15 +62,16 @@ export interface SeriesState {
   layoutCount: number;
 }
 
-export function createSeriesState(item: string): SeriesState {
+/** A new series; a restore passes the tables it loaded (reindexSeries must follow). */
+export function createSeriesState(item: string, tables?: { readonly lines: LineTable; readonly shipments: ShipmentTable }): SeriesState {
   return {
     item,
-    lines: new Table(LINE_COLUMNS, 8),
-    lineHeads: new HashIndex(),
-    shipments: new Table(SHIPMENT_COLUMNS, 4),
-    shipmentIds: new HashIndex(),
+    lines: tables?.lines ?? new Table(LINE_COLUMNS, 8),
+    lineHeads: new HashIndex(tables?.lines.length),
+    shipments: tables?.shipments ?? new Table(SHIPMENT_COLUMNS, 4),
+    shipmentIds: new HashIndex(tables?.shipments.length),
     baselines: [],
-    eventIds: new HashIndex(),
+    eventIds: new HashIndex(tables ? tables.lines.length + tables.shipments.length : undefined),
     changeCount: 0,
     layoutCount: 0,
   };

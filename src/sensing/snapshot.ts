@@ -178,17 +178,17 @@ function tableColumns(saved: unknown): Record<string, number[] | undefined> | un
 
 function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   if (typeof snap?.item !== 'string') corrupt('a series has no item');
-  const s = createSeriesState(snap.item);
-  const lines = Table.fromJSON(SAVED_LINE_COLUMNS, tableColumns(snap.lines));
+  // Tables loaded column by column at their final size: appending row by row cost an object per row and repeated
+  // regrowth, most of a large restore's time and garbage. prevSameLine is not saved; reindexSeries rebuilds it.
+  const lines = Table.fromJSON(LINE_COLUMNS, tableColumns(snap.lines), { prevSameLine: -1 });
   const shipments = Table.fromJSON(SHIPMENT_COLUMNS, tableColumns(snap.shipments));
   if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
   if (!shipments) corrupt(`series ${snap.item}: shipments are incomplete`);
+  const customer = lines.cols.customer;
   for (let i = 0; i < lines.length; i++) {
-    s.lines.push({ ...rowOf(lines, i), prevSameLine: -1 } as never);
-    const c = lines.cols.customer[i]!;
-    if (c >= customers || c < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
+    if (customer[i]! >= customers || customer[i]! < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
   }
-  for (let i = 0; i < shipments.length; i++) s.shipments.push(rowOf(shipments, i) as never);
+  const s = createSeriesState(snap.item, { lines, shipments });
   const baselines = baselineList(snap.baselines);
   if (!baselines) corrupt(`series ${snap.item}: baselines are incomplete`);
   for (const b of baselines) {
@@ -214,12 +214,6 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   s.baselines.sort((a, b) => a.version - b.version);
   reindexSeries(s);
   return s;
-}
-
-function rowOf(t: Table<Record<string, 'f64' | 'i32'>>, i: number): Record<string, number> {
-  const row: Record<string, number> = {};
-  for (const name of Object.keys(t.spec)) row[name] = t.cols[name]![i]!;
-  return row;
 }
 
 /** Rebuilds a location state from its snapshot; NEARCAST_STATE_CORRUPT says what is wrong. */
