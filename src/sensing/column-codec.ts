@@ -88,12 +88,18 @@ export function encodeColumn(values: ArrayLike<number>): string {
   return `f${toBase64(raw, 8 * n)}`;
 }
 
-/** Values of a column in text form; undefined when the text is damaged. */
-export function decodeColumn(text: string): number[] | undefined {
+type Sink = number[] | Float64Array | Int32Array;
+
+/** Decodes into the list `make` gives for the value count; undefined when the text is damaged. */
+function decodeInto<A extends Sink>(text: string, make: (n: number) => A): A | undefined {
   const bytes = fromBase64(text.slice(1));
   if (bytes === undefined) return undefined;
   if (text[0] === 'd') {
-    const out: number[] = [];
+    // One value ends at each byte without the continuation bit.
+    let n = 0;
+    for (let k = 0; k < bytes.length; k++) if ((bytes[k]! & 128) === 0) n++;
+    const out = make(n);
+    let i = 0;
     let prev = 0;
     let z = 0;
     let scale = 1;
@@ -107,7 +113,7 @@ export function decodeColumn(text: string): number[] | undefined {
       }
       const d = z % 2 === 0 ? z / 2 : -(z + 1) / 2;
       prev += d;
-      out.push(prev);
+      out[i++] = prev;
       z = 0;
       scale = 1;
     }
@@ -116,9 +122,28 @@ export function decodeColumn(text: string): number[] | undefined {
   if (text[0] === 'f') {
     if (bytes.length % 8 !== 0) return undefined;
     const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.length);
-    const out: number[] = [];
-    for (let k = 0; k < bytes.length; k += 8) out.push(view.getFloat64(k, true));
+    const out = make(bytes.length / 8);
+    for (let k = 0; k < bytes.length; k += 8) out[k / 8] = view.getFloat64(k, true);
     return out;
   }
   return undefined;
+}
+
+/** Values of a column in text form; undefined when the text is damaged. */
+export function decodeColumn(text: string): number[] | undefined {
+  return decodeInto(text, (n) => new Array<number>(n));
+}
+
+/**
+ * A column in text form straight into a typed array of its kind (no intermediate list: a restore decodes millions
+ * of values); undefined when the text is damaged or holds a value that is not finite. An i32 column takes its
+ * values as Int32Array.from would.
+ */
+export function decodeTypedColumn(text: string, kind: 'f64' | 'i32'): Float64Array | Int32Array | undefined {
+  if (text[0] === 'f') {
+    const values = decodeInto(text, (n) => new Float64Array(n));
+    if (values === undefined || !values.every(Number.isFinite)) return undefined;
+    return kind === 'f64' ? values : Int32Array.from(values);
+  }
+  return decodeInto(text, (n) => (kind === 'f64' ? new Float64Array(n) : new Int32Array(n)));
 }

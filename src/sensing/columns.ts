@@ -11,9 +11,9 @@ export class Table<S extends ColumnSpec> {
   length = 0;
   cols: Columns<S>;
 
-  constructor(spec: S, capacity = 8) {
+  constructor(spec: S, capacity = 8, cols?: Columns<S>) {
     this.spec = spec;
-    this.cols = Table.allocate(spec, capacity);
+    this.cols = cols ?? Table.allocate(spec, capacity);
   }
 
   private static allocate<S extends ColumnSpec>(spec: S, capacity: number): Columns<S> {
@@ -74,28 +74,25 @@ export class Table<S extends ColumnSpec> {
   }
 
   /**
-   * Rebuilds a table from `toJSON()` output; returns undefined when a column is missing or lengths differ. Columns
-   * named in `unsaved` are not read: every row gets the value given (an index the caller rebuilds after).
+   * A table over the given columns as they are (not copied): each must be of its spec's kind and all of one length.
+   * Columns named in `unsaved` are made, every row holding the value given. Undefined when a column is missing.
    */
-  static fromJSON<S extends ColumnSpec>(spec: S, data: unknown, unsaved: Partial<Record<keyof S & string, number>> = {}): Table<S> | undefined {
-    if (data === null || typeof data !== 'object') return undefined;
-    const rec = data as Record<string, unknown>;
+  static fromColumns<S extends ColumnSpec>(spec: S, given: Readonly<Record<string, Float64Array | Int32Array | undefined>>, unsaved: Partial<Record<keyof S & string, number>> = {}): Table<S> | undefined {
     let n = -1;
-    for (const name of Object.keys(spec)) {
+    for (const [name, kind] of Object.entries(spec)) {
       if (name in unsaved) continue;
-      const col = rec[name];
-      if (!Array.isArray(col) || !col.every((v) => typeof v === 'number' && Number.isFinite(v))) return undefined;
+      const col = given[name];
+      if (col === undefined || (kind === 'f64') !== col instanceof Float64Array || (kind === 'i32') !== col instanceof Int32Array) return undefined;
       if (n >= 0 && col.length !== n) return undefined;
       n = col.length;
     }
     const length = Math.max(0, n);
-    const t = new Table(spec, Math.max(8, length));
-    for (const name of Object.keys(spec)) {
-      const col = t.cols[name] as Float64Array | Int32Array;
+    const cols: Record<string, Float64Array | Int32Array> = {};
+    for (const [name, kind] of Object.entries(spec)) {
       const fill = (unsaved as Record<string, number | undefined>)[name];
-      if (fill === undefined) col.set(rec[name] as number[]);
-      else col.fill(fill, 0, length);
+      cols[name] = fill === undefined ? given[name]! : (kind === 'f64' ? new Float64Array(length) : new Int32Array(length)).fill(fill);
     }
+    const t = new Table(spec, 0, cols as Columns<S>);
     t.length = length;
     return t;
   }

@@ -1,8 +1,8 @@
 import { createLocationCalendar } from '../calendar/location-calendar.ts';
 import type { Location } from '../contracts/location.ts';
 import { NearcastError } from '../errors.ts';
-import { decodeColumn, encodeColumn } from './column-codec.ts';
-import { Table } from './columns.ts';
+import { decodeColumn, decodeTypedColumn, encodeColumn } from './column-codec.ts';
+import { Table, type ColumnSpec } from './columns.ts';
 import type { LocationState } from './location-state.ts';
 import { createSeriesState, LINE_COLUMNS, reindexSeries, SHIPMENT_COLUMNS, type BaselineVersionEntry, type SeriesState } from './series-state.ts';
 
@@ -169,19 +169,31 @@ function columnValues(saved: unknown): number[] | undefined {
   return typeof saved === 'string' ? decodeColumn(saved) : undefined;
 }
 
-function tableColumns(saved: unknown): Record<string, number[] | undefined> | undefined {
+/** A saved table's columns as typed arrays of their kinds; a column is undefined when damaged or not finite. */
+function typedColumns(spec: ColumnSpec, saved: unknown): Record<string, Float64Array | Int32Array | undefined> | undefined {
   if (saved === null || typeof saved !== 'object') return undefined;
-  const out: Record<string, number[] | undefined> = {};
-  for (const [name, col] of Object.entries(saved as Record<string, unknown>)) out[name] = columnValues(col);
+  const out: Record<string, Float64Array | Int32Array | undefined> = {};
+  for (const [name, kind] of Object.entries(spec)) {
+    const col = (saved as Record<string, unknown>)[name];
+    if (typeof col === 'string') out[name] = decodeTypedColumn(col, kind);
+    // Plain lists: version 1, and rows a series' tail appended to its last full save (series-tail.ts).
+    else if (Array.isArray(col) && col.every((v) => typeof v === 'number' && Number.isFinite(v))) out[name] = kind === 'f64' ? Float64Array.from(col) : Int32Array.from(col);
+  }
   return out;
+}
+
+function tableOf<S extends ColumnSpec>(spec: S, saved: unknown, unsaved?: Partial<Record<keyof S & string, number>>): Table<S> | undefined {
+  const cols = typedColumns(spec, saved);
+  return cols && Table.fromColumns(spec, cols, unsaved);
 }
 
 function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   if (typeof snap?.item !== 'string') corrupt('a series has no item');
-  // Tables loaded column by column at their final size: appending row by row cost an object per row and repeated
-  // regrowth, most of a large restore's time and garbage. prevSameLine is not saved; reindexSeries rebuilds it.
-  const lines = Table.fromJSON(LINE_COLUMNS, tableColumns(snap.lines), { prevSameLine: -1 });
-  const shipments = Table.fromJSON(SHIPMENT_COLUMNS, tableColumns(snap.shipments));
+  // Tables made of the decoded columns themselves: appending row by row cost an object per row and repeated
+  // regrowth, and decoding into plain lists a copy of every value, most of a large restore's time and garbage.
+  // prevSameLine is not saved; reindexSeries rebuilds it.
+  const lines = tableOf(LINE_COLUMNS, snap.lines, { prevSameLine: -1 });
+  const shipments = tableOf(SHIPMENT_COLUMNS, snap.shipments);
   if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
   if (!shipments) corrupt(`series ${snap.item}: shipments are incomplete`);
   const customer = lines.cols.customer;

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { applyBaselineVersion } from '../../../src/sensing/apply-baseline.ts';
 import { applyOrderLine } from '../../../src/sensing/apply-order-line.ts';
 import { applyShipment } from '../../../src/sensing/apply-shipment.ts';
-import { decodeColumn, encodeColumn } from '../../../src/sensing/column-codec.ts';
+import { decodeColumn, decodeTypedColumn, encodeColumn } from '../../../src/sensing/column-codec.ts';
 import { createLocationState } from '../../../src/sensing/location-state.ts';
 import { restoreLocationState, snapshotLocationState, type LocationStateSnapshot } from '../../../src/sensing/snapshot.ts';
 import { baseline, line, MASTER, shipment } from './helpers/records.ts';
@@ -51,6 +51,24 @@ describe('the snapshot column form', () => {
     expect(decodeColumn('d/w')).toBeUndefined(); // a varint whose last byte says "more follows"
     expect(decodeColumn('fAAAA')).toBeUndefined(); // not a whole float64
     expect(decodeColumn('d*AA')).toBeUndefined();
+  });
+
+  it('decodes straight into a typed array the values the plain decoding gives', () => {
+    const f64 = decodeTypedColumn(encodeColumn([1_772_000_000_000, 1_772_000_003_600, -5]), 'f64')!;
+    expect(f64).toBeInstanceOf(Float64Array);
+    expect([...f64]).toEqual([1_772_000_000_000, 1_772_000_003_600, -5]);
+    const raw = decodeTypedColumn(encodeColumn([0.1, -2.5, 5e-324]), 'f64')!;
+    expect([...raw]).toEqual([0.1, -2.5, 5e-324]);
+    const i32 = decodeTypedColumn(encodeColumn([3, -1, 20_000, 7]), 'i32')!;
+    expect(i32).toBeInstanceOf(Int32Array);
+    expect([...i32]).toEqual([3, -1, 20_000, 7]);
+    // A fractional value in an i32 column truncates, as Int32Array.from does (2.75 → 2, −1.5 → −1).
+    expect([...decodeTypedColumn(encodeColumn([2.75, -1.5]), 'i32')!]).toEqual([2, -1]);
+    expect(decodeTypedColumn('d', 'i32')!.length).toBe(0);
+    expect(decodeTypedColumn('d/w', 'f64')).toBeUndefined();
+    expect(decodeTypedColumn('fAAAA', 'f64')).toBeUndefined();
+    expect(decodeTypedColumn(encodeColumn([1, Number.NaN]), 'f64')).toBeUndefined();
+    expect(decodeTypedColumn(encodeColumn([Number.POSITIVE_INFINITY]), 'i32')).toBeUndefined();
   });
 
   it('restores a version-1 snapshot (plain number lists) to the same state', () => {

@@ -35,16 +35,19 @@ describe('restoreLocationState', () => {
   });
 });
 
-describe('Table.fromJSON', () => {
-  it('fills a column it is told is not saved with the given value, and still refuses ragged columns', () => {
+describe('Table.fromColumns', () => {
+  it('takes the columns as given, makes the unsaved ones with their value, and refuses missing, ragged or mistyped columns', () => {
     const spec = { a: 'f64', b: 'i32', idx: 'i32' } as const;
-    const t = Table.fromJSON(spec, { a: [1.5, 2.5, 3.5], b: [4, 5, 6] }, { idx: -1 })!;
+    const a = Float64Array.of(1.5, 2.5, 3.5);
+    const t = Table.fromColumns(spec, { a, b: Int32Array.of(4, 5, 6) }, { idx: -1 })!;
     expect(t.length).toBe(3);
-    expect([...t.cols.a.subarray(0, 3)]).toEqual([1.5, 2.5, 3.5]);
-    expect([...t.cols.idx.subarray(0, 3)]).toEqual([-1, -1, -1]);
+    expect(t.cols.a).toBe(a);
+    expect([...t.cols.idx]).toEqual([-1, -1, -1]);
     t.push({ a: 7, b: 8, idx: 2 });
     expect(t.toJSON()).toEqual({ a: [1.5, 2.5, 3.5, 7], b: [4, 5, 6, 8], idx: [-1, -1, -1, 2] });
-    expect(Table.fromJSON(spec, { a: [1], b: [1, 2] }, { idx: -1 })).toBeUndefined();
-    expect(Table.fromJSON(spec, { a: [1], b: [1] })).toBeUndefined();
+    expect(Table.fromColumns(spec, { a: Float64Array.of(1), b: Int32Array.of(1, 2) }, { idx: -1 })).toBeUndefined();
+    expect(Table.fromColumns(spec, { a: Float64Array.of(1), b: Int32Array.of(1) })).toBeUndefined();
+    expect(Table.fromColumns(spec, { a: Int32Array.of(1), b: Int32Array.of(1) }, { idx: -1 })).toBeUndefined();
+    expect(Table.fromColumns(spec, {}, { idx: 0 })).toBeUndefined();
   });
 });
