@@ -12,13 +12,18 @@ import type { SensingSettings } from './settings.ts';
 // fresh computation would give the same numbers: same settings, calendar and shipment lag, the same input series
 // with the same first-activity days, and no late record since; anything else computes them again.
 
+/** The input series of a close and their first-activity days: kept signals are per input index. */
+interface Layout {
+  readonly items: readonly string[];
+  readonly first: Float64Array;
+}
+
 interface Kept {
   readonly stamp: number;
   readonly settings: SensingSettings;
   readonly calendar: LocationCalendar;
   readonly lag: number;
-  readonly items: readonly string[];
-  readonly first: Float64Array;
+  readonly layout: Layout;
   readonly signals: TrainingSignals;
 }
 
@@ -41,17 +46,32 @@ export function keptSignalCounts(state: LocationState): { readonly reused: numbe
   return { reused: c?.reused ?? 0, computed: c?.computed ?? 0 };
 }
 
-function firstDays(inputs: readonly SeriesInput[]): Float64Array {
-  return Float64Array.from(inputs, (x) => x.frame.firstActivityDay ?? NaN);
+// One layout object per distinct layout: the closes of a location share it while its series stay the same, so
+// checking a kept entry is one comparison and the days kept do not each hold a copy.
+const lastLayout = new WeakMap<LocationState, Layout>();
+const layoutOfInputs = new WeakMap<readonly SeriesInput[], Layout>();
+
+function sameLayout(a: Layout, inputs: readonly SeriesInput[]): boolean {
+  if (a.items.length !== inputs.length) return false;
+  for (let i = 0; i < inputs.length; i++) {
+    if (a.items[i] !== inputs[i]!.item || !Object.is(a.first[i], inputs[i]!.frame.firstActivityDay ?? NaN)) return false;
+  }
+  return true;
+}
+
+function layoutOf(state: LocationState, inputs: readonly SeriesInput[]): Layout {
+  const known = layoutOfInputs.get(inputs);
+  if (known) return known;
+  const prev = lastLayout.get(state);
+  const layout =
+    prev && sameLayout(prev, inputs) ? prev : { items: inputs.map((x) => x.item), first: Float64Array.from(inputs, (x) => x.frame.firstActivityDay ?? NaN) };
+  lastLayout.set(state, layout);
+  layoutOfInputs.set(inputs, layout);
+  return layout;
 }
 
 function stillValid(k: Kept, state: LocationState, inputs: readonly SeriesInput[], ctx: RecomputeContext, lag: number, day: number): boolean {
-  if (k.settings !== ctx.settings || k.calendar !== ctx.cal || k.lag !== lag || k.items.length !== inputs.length) return false;
-  for (let i = 0; i < inputs.length; i++) {
-    if (k.items[i] !== inputs[i]!.item) return false;
-    const f = inputs[i]!.frame.firstActivityDay ?? NaN;
-    if (!Object.is(k.first[i], f)) return false;
-  }
+  if (k.settings !== ctx.settings || k.calendar !== ctx.cal || k.lag !== lag || k.layout !== layoutOf(state, inputs)) return false;
   return !knownSince(state, k.stamp, day);
 }
 
@@ -66,8 +86,7 @@ function keep(state: LocationState, inputs: readonly SeriesInput[], ctx: Recompu
     settings: ctx.settings,
     calendar: ctx.cal,
     lag,
-    items: inputs.map((x) => x.item),
-    first: firstDays(inputs),
+    layout: layoutOf(state, inputs),
     signals,
   });
   // Plan dates only move forward: no later close trains on days older than this one's oldest as-of day.
@@ -110,4 +129,5 @@ export function keepLiveSignals(state: LocationState, inputs: readonly SeriesInp
 /** Forgets every kept signal of the location (after a prune, which may change what a fresh computation sees). */
 export function forgetKeptSignals(state: LocationState): void {
   kept.delete(state);
+  lastLayout.delete(state);
 }

@@ -105,7 +105,6 @@ export function senseLocation(
   const work = senseWork(state, asOf, settings);
   const { ctx, inputs, live, models } = work;
   const selfCheck = new Set(options.selfCheckFallbacks ?? []);
-  const sig0 = live;
   const previous = new Map((options.previousPlans ?? []).map((p) => [p.item as string, p]));
 
   const demandSums = new Float64Array(8);
@@ -133,9 +132,9 @@ export function senseLocation(
   const plans: Plan[] = [];
   const monitoringInputs: MonitoringInput[] = [];
   inputs.forEach((input, i) => {
-    const sig = sig0.series[i]!;
+    const sig = live.series[i]!;
     const outcomes: LeadOutcome[] = [];
-    for (let L = 0; L <= settings.maxLead; L++) outcomes.push(applyLead(input, sig, sig0.location, models[L]!, ctx, L, selfCheck.has(L)));
+    for (let L = 0; L <= settings.maxLead; L++) outcomes.push(applyLead(input, sig, live.location, models[L]!, ctx, L, selfCheck.has(L)));
     const level = Number.isFinite(sig.level) ? sig.level : Number.isFinite(sig.window.runRate) ? sig.window.runRate : 0;
     const profiles = seriesProfiles(input.frame, ctx, pooledDemand, pooledIntake, level);
     const dists = outcomes.map((o) => ({ certain: o.certain, mean: o.uncertainMean, phi: o.phi }));
@@ -202,7 +201,7 @@ export function senseLocation(
     fallback: selfCheck.has(m.lead) ? 'self-check' : m.fitted ? null : 'location-unfit',
     coefficients: FEATURE_NAMES.map((name, k) => ({ name, value: m.coefficients[k]! })),
     weightedR2: m.weightedR2,
-    locationFactor: sig0.location.factor,
+    locationFactor: live.location.factor,
     survivalRate: m.survival,
     dispersion: VOLUME_BANDS.map((band) => ({ band, phi: m.dispersion[band] })),
   }));
