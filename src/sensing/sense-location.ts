@@ -3,6 +3,7 @@ import type { ManifestModel } from '../contracts/manifest.ts';
 import { PLAN_SCHEMA_VERSION, type Plan, type PlanLead } from '../contracts/plan.ts';
 import { VOLUME_BANDS } from '../stats/volume-band.ts';
 import { applyLead, type LeadOutcome } from './apply-lead.ts';
+import { Arena, FRESH_ARRAYS, type ScratchArrays } from './arena.ts';
 import { keepLiveSignals, pastSignals } from './as-of-cache.ts';
 import { asOfSignals, trainingPart, type AsOfSignals, type TrainingSignals } from './as-of-signals.ts';
 import { dailySplit } from './daily-split.ts';
@@ -61,15 +62,49 @@ function medianLag(state: LocationState, settings: SensingSettings, cutoffMs: nu
   return Math.max(0, Math.min(28, lags[lags.length >> 1]!));
 }
 
+/** Scratch space of one recompute: series frames live through it, training rows through one lead's fit. */
+interface Scratch {
+  readonly frames: ScratchArrays;
+  /** Called before each lead's training rows: the previous lead's may be overwritten. */
+  readonly rows: () => ScratchArrays;
+}
+
+const FRESH_SCRATCH: Scratch = { frames: FRESH_ARRAYS, rows: () => FRESH_ARRAYS };
+
+// Each location keeps its scratch blocks from one close to the next (see arena.ts). Nothing senseLocation returns is
+// a view into them; senseWork, which returns the frames themselves, allocates its own.
+const arenas = new WeakMap<LocationState, { frames: Arena; rows: Arena }>();
+
+function scratchOf(state: LocationState): Scratch {
+  let a = arenas.get(state);
+  if (!a) {
+    a = { frames: new Arena(), rows: new Arena() };
+    arenas.set(state, a);
+  }
+  const { frames, rows } = a;
+  frames.reset();
+  return {
+    frames,
+    rows: () => {
+      rows.reset();
+      return rows;
+    },
+  };
+}
+
 /** Fits the location's models at the as-of moment (shared by senseLocation and the tests' feature checks). */
 export function senseWork(state: LocationState, asOf: AsOf, settings: SensingSettings = DEFAULT_SENSING_SETTINGS): SenseWork {
+  return senseWorkIn(state, asOf, settings, FRESH_SCRATCH);
+}
+
+function senseWorkIn(state: LocationState, asOf: AsOf, settings: SensingSettings, scratch: Scratch): SenseWork {
   const ctx = recomputeContext(state.calendar, asOf, settings);
   const lag = medianLag(state, settings, ctx.cutoffMs);
   const inputs: SeriesInput[] = [];
   for (const item of [...state.series.keys()].sort()) {
     const series = state.series.get(item)!;
     const parts = seriesParts(series, settings, state.calendar.weekStart);
-    const input = prepareSeries(item, series, parts, ctx, lag);
+    const input = prepareSeries(item, series, parts, ctx, lag, scratch.frames);
     if (isActive(input, ctx)) inputs.push(input);
   }
   const live = asOfSignals(inputs, ctx, 0);
@@ -79,7 +114,7 @@ export function senseWork(state: LocationState, asOf: AsOf, settings: SensingSet
   for (let j = 1; j <= ctx.J; j++) signals.push(pastSignals(state, inputs, ctx, j, lag));
   const survival = survivalByLead(inputs, ctx);
   const models: LeadModel[] = [];
-  for (let L = 0; L <= settings.maxLead; L++) models.push(fitLeadModel(trainingRows(inputs, signals, ctx, L), survival[L]!, ctx));
+  for (let L = 0; L <= settings.maxLead; L++) models.push(fitLeadModel(trainingRows(inputs, signals, ctx, L, scratch.rows()), survival[L]!, ctx));
   return { ctx, inputs, live, signals, models };
 }
 
@@ -102,7 +137,7 @@ export function senseLocation(
   settings: SensingSettings = DEFAULT_SENSING_SETTINGS,
   options: SenseOptions = {},
 ): SenseResult {
-  const work = senseWork(state, asOf, settings);
+  const work = senseWorkIn(state, asOf, settings, scratchOf(state));
   const { ctx, inputs, live, models } = work;
   const selfCheck = new Set(options.selfCheckFallbacks ?? []);
   const previous = new Map((options.previousPlans ?? []).map((p) => [p.item as string, p]));

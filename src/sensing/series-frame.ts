@@ -1,4 +1,5 @@
 import { LAG_UNKNOWN, PART_FIRST_FILL, PART_LARGE, type SeriesParts } from './line-parts.ts';
+import { FRESH_ARRAYS, type ScratchArrays } from './arena.ts';
 import type { RecomputeContext } from './recompute-context.ts';
 
 /**
@@ -59,29 +60,29 @@ function cutOf(c0: number, kd: number, NC: number): number {
   return j >= NC ? NC : j;
 }
 
-export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesFrame {
+export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number, arrays: ScratchArrays = FRESH_ARRAYS): SeriesFrame {
   const { nWeeks, NC, firstDay, nDays, k, cutoffMs } = ctx;
   const maxLead = ctx.settings.maxLead;
   const shipBasis = ctx.settings.demandBasis === 'shipments';
   const S = NC + 1;
-  const book = new Float64Array(nWeeks * S);
-  const bookLarge = new Float64Array(nWeeks * S);
-  const demand = shipBasis ? new Float64Array(nWeeks * S) : book;
-  const demandLarge = shipBasis ? new Float64Array(nWeeks * S) : bookLarge;
-  const known0 = new Float64Array(nWeeks);
-  const known0Large = new Float64Array(nWeeks);
-  const toDate0 = new Float64Array(nWeeks);
-  const survivingBooked = new Float64Array(nWeeks * (maxLead + 1));
-  const firstFill = new Float64Array(nWeeks * S);
-  const censored = new Uint8Array(nWeeks);
-  const censoredDay = new Uint8Array(nDays);
+  const book = arrays.f64(nWeeks * S);
+  const bookLarge = arrays.f64(nWeeks * S);
+  const demand = shipBasis ? arrays.f64(nWeeks * S) : book;
+  const demandLarge = shipBasis ? arrays.f64(nWeeks * S) : bookLarge;
+  const known0 = arrays.f64(nWeeks);
+  const known0Large = arrays.f64(nWeeks);
+  const toDate0 = arrays.f64(nWeeks);
+  const survivingBooked = arrays.f64(nWeeks * (maxLead + 1));
+  const firstFill = arrays.f64(nWeeks * S);
+  const censored = arrays.u8(nWeeks);
+  const censoredDay = arrays.u8(nDays);
   const grace = ctx.settings.censorGraceDays;
   // What a day's censoring is judged from: orders due and shipments known by the end of day + grace.
-  const dueJudged = new Float64Array(shipBasis ? nDays : 0);
-  const shippedJudged = new Float64Array(shipBasis ? nDays : 0);
-  const dayDemand = new Float64Array(nDays);
-  const dayIntake = new Float64Array(nDays);
-  const dayDue = shipBasis ? new Float64Array(nDays) : dayDemand;
+  const dueJudged = arrays.f64(shipBasis ? nDays : 0);
+  const shippedJudged = arrays.f64(shipBasis ? nDays : 0);
+  const dayDemand = arrays.f64(nDays);
+  const dayIntake = arrays.f64(nDays);
+  const dayDue = shipBasis ? arrays.f64(nDays) : dayDemand;
   let firstActivity: number | null = null;
   let knownAfterCutoffDay = Infinity;
 

@@ -1,3 +1,4 @@
+import { FRESH_ARRAYS, type ScratchArrays } from './arena.ts';
 import { coveringVersionKnownAt, levelRatio, versionKnownAt, weekValue } from './baseline-lookup.ts';
 import type { SeriesParts } from './line-parts.ts';
 import type { RecomputeContext } from './recompute-context.ts';
@@ -19,11 +20,18 @@ export interface SeriesInput {
   readonly rhoLast: { v: BaselineVersionEntry | undefined; ref: BaselineVersionEntry | undefined; r: number };
 }
 
-export function prepareSeries(item: string, series: SeriesState, parts: SeriesParts, ctx: RecomputeContext, lagDays: number): SeriesInput {
-  const frame = buildSeriesFrame(parts, ctx, lagDays);
+export function prepareSeries(
+  item: string,
+  series: SeriesState,
+  parts: SeriesParts,
+  ctx: RecomputeContext,
+  lagDays: number,
+  arrays: ScratchArrays = FRESH_ARRAYS,
+): SeriesInput {
+  const frame = buildSeriesFrame(parts, ctx, lagDays, arrays);
   const ref: Array<BaselineVersionEntry | undefined> = [];
   for (let j = 0; j <= ctx.J; j++) ref.push(versionKnownAt(series, ctx.planDay - 7 * j, ctx.cutoffMs));
-  const weekBase = new Float64Array(ctx.nWeeks).fill(NaN);
+  const weekBase = arrays.f64(ctx.nWeeks).fill(NaN);
   const weekBaseVersion: Array<BaselineVersionEntry | undefined> = new Array(ctx.nWeeks).fill(undefined);
   for (let p = 0; p <= ctx.H; p++) {
     const w = ctx.firstDay + 7 * p;

@@ -1,4 +1,5 @@
 import type { TrainingSignals } from './as-of-signals.ts';
+import { FRESH_ARRAYS, type ScratchArrays } from './arena.ts';
 import { weekValue } from './baseline-lookup.ts';
 import { bookedAt, featureTermsInto, FEATURE_COUNT, toDateAt } from './features.ts';
 import type { RecomputeContext } from './recompute-context.ts';
@@ -32,21 +33,27 @@ export interface TrainingRows {
   readonly series: number;
 }
 
-export function trainingRows(inputs: readonly SeriesInput[], signals: readonly TrainingSignals[], ctx: RecomputeContext, lead: number): TrainingRows {
+export function trainingRows(
+  inputs: readonly SeriesInput[],
+  signals: readonly TrainingSignals[],
+  ctx: RecomputeContext,
+  lead: number,
+  arrays: ScratchArrays = FRESH_ARRAYS,
+): TrainingRows {
   const s = ctx.settings;
   const cap = inputs.length * s.lookbackWeeks;
-  const columns = Array.from({ length: FEATURE_COUNT }, () => new Float64Array(cap));
-  const y = new Float64Array(cap);
-  const weight = new Float64Array(cap);
-  const seriesIndex = new Int32Array(cap);
-  const weeksAgo = new Int32Array(cap);
-  const baseline = new Float64Array(cap);
-  const demand = new Float64Array(cap);
-  const booked = new Float64Array(cap);
-  const toDate = new Float64Array(cap);
-  const perDay = new Float64Array(cap);
-  const recency = new Float64Array(cap);
-  const small = new Uint8Array(cap);
+  const columns = Array.from({ length: FEATURE_COUNT }, () => arrays.f64(cap));
+  const y = arrays.f64(cap);
+  const weight = arrays.f64(cap);
+  const seriesIndex = arrays.i32(cap);
+  const weeksAgo = arrays.i32(cap);
+  const baseline = arrays.f64(cap);
+  const demand = arrays.f64(cap);
+  const booked = arrays.f64(cap);
+  const toDate = arrays.f64(cap);
+  const perDay = arrays.f64(cap);
+  const recency = arrays.f64(cap);
+  const small = arrays.u8(cap);
   const x = new Float64Array(FEATURE_COUNT);
   let m = 0;
   for (let n = 1; n <= s.lookbackWeeks; n++) {

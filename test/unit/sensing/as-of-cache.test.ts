@@ -67,6 +67,8 @@ describe('signals kept between closes', () => {
       let closes = 0;
       let late = 0;
       let fixes = 0;
+      // A close reuses its scratch memory at the next one: what it returned must not be a view into it.
+      let previous: { result: ReturnType<typeof senseLocation>; text: string } | undefined;
       for (let k = 1; k <= 25; k++) {
         const d = dayOf(sc, 18, k);
         while (next < pending.length && pending[next]!.dueMs <= closeOf(d) + HOUR) {
@@ -90,6 +92,8 @@ describe('signals kept between closes', () => {
         const fresh = senseLocation(cloneLocationState(state), asOf, settings);
         expect(kept.plans).toEqual(fresh.plans);
         expect(kept.model).toEqual(fresh.model);
+        if (previous) expect(JSON.stringify(previous.result)).toBe(previous.text);
+        previous = { result: kept, text: JSON.stringify(kept) };
         closes++;
       }
       expect(closes).toBe(19);
