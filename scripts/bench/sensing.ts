@@ -30,11 +30,13 @@ type HeldRecord = Extract<ReturnType<typeof generateScenario>['records'][number]
 
 const DAILY = 5;
 /** BENCH_PROFILE=path writes a CPU profile of the measured daily closes only (path.<series>.cpuprofile). */
-const profiler = process.env.BENCH_PROFILE ? new Session() : undefined;
+const profiler = process.env.BENCH_PROFILE || process.env.BENCH_ALLOC ? new Session() : undefined;
 if (profiler) {
   profiler.connect();
-  await profiler.post('Profiler.enable');
+  await profiler.post(process.env.BENCH_ALLOC ? 'HeapProfiler.enable' : 'Profiler.enable');
 }
+/** BENCH_ALLOC=path instead samples what the measured closes allocate (path.<series>.heapprofile). */
+const startProfile = () => profiler!.post(process.env.BENCH_ALLOC ? 'HeapProfiler.startSampling' : 'Profiler.start', process.env.BENCH_ALLOC ? { samplingInterval: 64 * 1024, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: true } : undefined);
 /** Closes before the measured ones: one per business day, so each weekday's past as-of days have been computed once,
  * as in a service that closes every day (a close reuses the as-of signals of the closes 7, 14, … days before it). */
 const WARM = 5;
@@ -107,13 +109,16 @@ for (const n of sizes.length > 0 ? sizes : [1000, 10_000]) {
     }
     if ((2 + k) % 7 >= 5) continue;
     const measured = warm.length >= WARM;
-    if (measured && profiler && daily.length === 0) await profiler.post('Profiler.start');
+    if (measured && profiler && daily.length === 0) await startProfile();
     const ms = cpu(() => sense(d));
     (warm.length < WARM ? warm : daily).push(ms);
     quiet += todays.length === 0 ? 1 : 0;
     if (process.env.BENCH_TRACE) console.log(d, todays.length, ms.toFixed(0), keptSignalCounts(state!));
   }
-  if (profiler) {
+  if (profiler && process.env.BENCH_ALLOC) {
+    const { profile } = await profiler.post('HeapProfiler.stopSampling');
+    writeFileSync(`${process.env.BENCH_ALLOC}.${n}.heapprofile`, JSON.stringify(profile));
+  } else if (profiler) {
     const { profile } = await profiler.post('Profiler.stop');
     writeFileSync(`${process.env.BENCH_PROFILE}.${n}.cpuprofile`, JSON.stringify(profile));
   }

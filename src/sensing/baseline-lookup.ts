@@ -5,11 +5,13 @@ import type { BaselineVersionEntry, SeriesState } from './series-state.ts';
 
 /** Highest version known by the end of local day `day` (and, when given, by the instant `cutoffMs`). */
 export function versionKnownAt(series: SeriesState, day: number, cutoffMs = Infinity): BaselineVersionEntry | undefined {
-  let best: BaselineVersionEntry | undefined;
-  for (const b of series.baselines) {
-    if (b.knownDay <= day && b.knownMs <= cutoffMs && (best === undefined || b.version > best.version)) best = b;
+  // Versions are kept in ascending order, each once (see SeriesState): the first known one from the top is the answer.
+  const list = series.baselines;
+  for (let k = list.length - 1; k >= 0; k--) {
+    const b = list[k]!;
+    if (b.knownDay <= day && b.knownMs <= cutoffMs) return b;
   }
-  return best;
+  return undefined;
 }
 
 /** Quantity of a week in a version, undefined when the version does not cover it. */
@@ -30,11 +32,12 @@ export function weekValue(v: BaselineVersionEntry | undefined, weekDay: number):
 
 /** Highest version known by then that covers the week (the fallback when the newest one does not). */
 export function coveringVersionKnownAt(series: SeriesState, weekDay: number, day: number, cutoffMs = Infinity): BaselineVersionEntry | undefined {
-  let best: BaselineVersionEntry | undefined;
-  for (const b of series.baselines) {
-    if (b.knownDay <= day && b.knownMs <= cutoffMs && (best === undefined || b.version > best.version) && weekValue(b, weekDay) !== undefined) best = b;
+  const list = series.baselines;
+  for (let k = list.length - 1; k >= 0; k--) {
+    const b = list[k]!;
+    if (b.knownDay <= day && b.knownMs <= cutoffMs && weekValue(b, weekDay) !== undefined) return b;
   }
-  return best;
+  return undefined;
 }
 
 /** Most weeks compared when measuring how a re-plan moved the level. */

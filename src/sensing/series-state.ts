@@ -53,7 +53,7 @@ export interface SeriesState {
   readonly lineHeads: HashIndex;
   readonly shipments: ShipmentTable;
   readonly shipmentIds: HashIndex;
-  /** Sorted by version ascending. */
+  /** Sorted by version ascending, each version once (apply rejects a repeated version as a duplicate). */
   readonly baselines: BaselineVersionEntry[];
   readonly eventIds: HashIndex;
   /** Bumped on every change; derived views cache on it. */

@@ -56,29 +56,38 @@ export function trainingRows(
   const small = arrays.u8(cap);
   const x = new Float64Array(FEATURE_COUNT);
   let m = 0;
-  for (let n = 1; n <= s.lookbackWeeks; n++) {
-    const j = n + lead;
-    const sig = signals[j]!;
-    const p = ctx.H - n;
-    const weekDay = ctx.firstDay + 7 * p;
-    const rowRecency = recencyWeight(n - 1, s.halfLifeWeeks);
-    const width = sig.width;
-    for (let i = 0; i < inputs.length; i++) {
-      const input = inputs[i]!;
+  // Series by series (each series' frame is read for all its weeks while in cache); the rows come out grouped by
+  // series, weeks newest first within each.
+  const weeks = s.lookbackWeeks;
+  const sigOf: TrainingSignals[] = [];
+  const recencyOf = new Float64Array(weeks + 1);
+  for (let n = 1; n <= weeks; n++) {
+    sigOf[n] = signals[n + lead]!;
+    recencyOf[n] = recencyWeight(n - 1, s.halfLifeWeeks);
+  }
+  for (let i = 0; i < inputs.length; i++) {
+    const input = inputs[i]!;
+    const frame = input.frame;
+    const first = frame.firstActivityDay;
+    if (first === null) continue;
+    for (let n = 1; n <= weeks; n++) {
+      const sig = sigOf[n]!;
       const ref = sig.ref[i];
       if (!sig.present[i] || !ref) continue;
-      const first = input.frame.firstActivityDay;
-      if (first === null || first > weekDay || sig.historyWeeks[i]! < s.newSeriesWeeks) continue;
-      if (input.frame.censored[p]) continue;
+      const p = ctx.H - n;
+      const weekDay = ctx.firstDay + 7 * p;
+      if (first > weekDay || sig.historyWeeks[i]! < s.newSeriesWeeks) continue;
+      if (frame.censored[p]) continue;
       const b = weekValue(ref, weekDay);
       if (b === undefined || !(b > 0)) continue;
       const rowBooked = bookedAt(input, ctx, p, lead);
       const rowToDate = toDateAt(input, p, lead);
-      featureTermsInto(x, input, sig.bookShare[i * width + lead]!, sig.toDateShare[i]!, sig.seriesFactor[i]!, sig.location, ctx, p, lead, b, rowBooked, rowToDate);
-      const d = at(input.frame.demand, ctx, p, ctx.NC);
+      featureTermsInto(x, input, sig.bookShare[i * sig.width + lead]!, sig.toDateShare[i]!, sig.seriesFactor[i]!, sig.location, ctx, p, lead, b, rowBooked, rowToDate);
+      const d = at(frame.demand, ctx, p, ctx.NC);
       for (let c = 0; c < FEATURE_COUNT; c++) columns[c]![m] = x[c]!;
       y[m] = d / b;
       // Small series stay out of the fit (weight 0) but their rows still inform the dispersion of their band.
+      const rowRecency = recencyOf[n]!;
       recency[m] = rowRecency;
       const isSmall = sig.small[i]!;
       weight[m] = isSmall ? 0 : rowRecency / sig.noiseVar[i]!;

@@ -7,6 +7,7 @@
 // only approximately (as with every interpolating definition).
 
 import { NearcastError } from '../errors.ts';
+import { ascendingOrder } from './ascending-order.ts';
 
 /** 1/Φ⁻¹(3/4): makes the MAD a consistent estimate of σ for normal data (Φ⁻¹(0.75) = 0.6744897501960817). */
 export const MAD_TO_SIGMA = 1 / 0.6744897501960817;
@@ -69,16 +70,12 @@ interface Sorted {
 const TIE_TOLERANCE = 1e-12;
 
 function sortWeighted(values: ArrayLike<number>, weights?: ArrayLike<number>): Sorted | null {
-  const idx: number[] = [];
-  for (let i = 0; i < values.length; i++) if (weights === undefined || weights[i]! > 0) idx.push(i);
-  if (idx.length === 0) return null;
-  // The comparator returns small integers, not value differences (which would be boxed on every comparison); the
-  // order is the same: by value, ties (including −0 and +0) by index.
-  idx.sort((a, b) => {
-    const va = values[a]!;
-    const vb = values[b]!;
-    return va < vb ? -1 : va > vb ? 1 : a - b;
-  });
+  let kept = 0;
+  const candidates = new Int32Array(values.length);
+  for (let i = 0; i < values.length; i++) if (weights === undefined || weights[i]! > 0) candidates[kept++] = i;
+  if (kept === 0) return null;
+  // By value, ties (including −0 and +0) by index.
+  const idx = ascendingOrder(values, candidates.subarray(0, kept));
   const n = idx.length;
   const x = new Float64Array(n);
   const w = new Float64Array(n);
