@@ -22,6 +22,22 @@ export interface LeadOutcome {
   readonly explanation: Explanation;
 }
 
+// The model's coefficients and fit summary are the same in every explanation of a lead: one shared copy per model
+// (readonly, like the whole plan), not two objects and five more per series (a close at 10k series made 300k).
+const partsOfModel = new WeakMap<LeadModel, { coefficients: Explanation['coefficients']; fit: Explanation['fit'] }>();
+
+function modelParts(model: LeadModel, halfLifeWeeks: number): { coefficients: Explanation['coefficients']; fit: Explanation['fit'] } {
+  let parts = partsOfModel.get(model);
+  if (parts === undefined || parts.fit.halfLifeWeeks !== halfLifeWeeks) {
+    parts = {
+      coefficients: FEATURE_NAMES.map((name, i) => ({ name, value: model.coefficients[i]! })),
+      fit: { rows: model.rows, series: model.series, weightedR2: model.weightedR2, halfLifeWeeks },
+    };
+    partsOfModel.set(model, parts);
+  }
+  return parts;
+}
+
 function fmt(x: number): string {
   return Number.isInteger(x) ? String(x) : x.toFixed(2);
 }
@@ -131,7 +147,7 @@ export function applyLead(
   const uncertain = Math.max(0, adjusted - floor);
   const kappa = s.predictiveVarianceFactor;
   const phi = uncertain > 0 ? kappa * model.dispersion[sig.band] + (kappa - 1) / uncertain : model.dispersion[sig.band];
-  const coefficients = FEATURE_NAMES.map((name, i) => ({ name, value: model.coefficients[i]! }));
+  const { coefficients, fit } = modelParts(model, s.halfLifeWeeks);
   const explanation: Explanation = {
     method,
     baselineVersion: versionShown,
@@ -150,7 +166,7 @@ export function applyLead(
     bounds: bounds ? { lower: bounds.lower, upper: bounds.upper } : null,
     terms: features ? FEATURE_NAMES.map((name, i) => ({ name, value: features!.x[i]!, contribution: model.coefficients[i]! * features!.x[i]! })) : [],
     coefficients,
-    fit: { rows: model.rows, series: model.series, weightedR2: model.weightedR2, halfLifeWeeks: s.halfLifeWeeks },
+    fit,
     volumeBand: sig.band,
     dispersion: phi,
     guardrail,

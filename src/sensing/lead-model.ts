@@ -70,7 +70,9 @@ export function fitLeadModel(rows: TrainingRows, survival: number, ctx: Recomput
     coefficients[0] = Math.min(s.bookCoefficientMax, Math.max(0, coefficients[0]!));
     standardErrors = fit.standardErrors;
     weightedR2 = fit.weightedR2;
-    fittedRatio = Float64Array.from(fit.fitted, (f) => 1 + f);
+    // A plain loop: Float64Array.from over a typed array walks the iterator protocol, an object per row.
+    fittedRatio = new Float64Array(rows.n);
+    for (let r = 0; r < rows.n; r++) fittedRatio[r] = 1 + fit.fitted[r]!;
   }
 
   // Dispersion of what was not yet certain (actual to date and surviving book are certain), per volume band, from
@@ -135,7 +137,7 @@ function fitLevelsTogether(rows: TrainingRows, y: Float64Array, strength: number
         if (standardErrors) standardErrors[c] = fit.standardErrors![k]!;
       }
     });
-    return { coefficients, standardErrors, weightedR2: fit.weightedR2, fitted: Float64Array.from(fit.fitted) };
+    return { coefficients, standardErrors, weightedR2: fit.weightedR2, fitted: fit.fitted };
   };
   const others = rows.columns.map((_, c) => c).filter((c) => c !== LOCATION && c !== SERIES).map((c) => [c]);
   const shared = fitGroups([...others, [LOCATION, SERIES]]);

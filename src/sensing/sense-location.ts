@@ -189,9 +189,8 @@ export function senseLocation(
     let largestMove = 0;
     let moved = prev === undefined;
     if (prev) {
-      const before = new Map(prev.leads.map((l) => [l.weekStart, l.adjusted]));
       for (const l of leads) {
-        const b = before.get(l.weekStart);
+        const b = prev.leads.find((x) => x.weekStart === l.weekStart)?.adjusted;
         if (b === undefined) continue;
         const move = Math.abs(l.adjusted - b);
         largestMove = Math.max(largestMove, move);

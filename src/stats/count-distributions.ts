@@ -10,7 +10,8 @@ import {
   logGamma as logGammaImpl,
   poissonDensityRaw,
   regularizedBeta,
-  regularizedGamma,
+  regularizedBetaSide,
+  regularizedGammaSide,
 } from './special-functions.ts';
 
 /** ln|Γ(x)|. */
@@ -54,7 +55,7 @@ export function poissonCdf(k: number, mu: number): number {
   if (k === Infinity) return 1;
   const kk = Math.floor(k);
   if (mu === 0) return 1;
-  return regularizedGamma(kk + 1, mu).upper;
+  return regularizedGammaSide(kk + 1, mu, true);
 }
 
 /** P[X ≥ k] for X ~ Poisson(mu), computed directly (not as 1 − cdf) so tiny upper tails keep their digits. */
@@ -65,7 +66,7 @@ export function poissonSf(k: number, mu: number): number {
   if (k === Infinity) return 0;
   const kk = Math.ceil(k);
   if (mu === 0) return 0;
-  return regularizedGamma(kk, mu).lower;
+  return regularizedGammaSide(kk, mu, false);
 }
 
 /** Smallest integer k with P[X ≤ k] ≥ p, X ~ Poisson(mu); Infinity for p = 1 when mu > 0. */
@@ -114,7 +115,7 @@ export function negBinomialCdf(k: number, mean: number, phi: number): number {
   if (k < 0) return 0;
   if (k === Infinity) return 1;
   if (isPoissonLimit(mean, phi)) return poissonCdf(k, mean);
-  return nbTails(Math.floor(k), mean, phi).lower;
+  return nbTail(Math.floor(k), mean, phi, false);
 }
 
 /** P[X ≥ k] for the negative binomial (mean, phi), computed directly in the upper tail. */
@@ -125,7 +126,7 @@ export function negBinomialSf(k: number, mean: number, phi: number): number {
   if (k <= 0) return 1;
   if (k === Infinity) return 0;
   if (isPoissonLimit(mean, phi)) return poissonSf(k, mean);
-  return nbTails(Math.ceil(k) - 1, mean, phi).upper;
+  return nbTail(Math.ceil(k) - 1, mean, phi, true);
 }
 
 /** Smallest integer k with P[X ≤ k] ≥ p for the negative binomial (mean, phi). */
@@ -145,35 +146,30 @@ export function negBinomialQuantile(p: number, mean: number, phi: number): numbe
 const NEAR_POISSON = 5e-6;
 
 /** P[X ≤ k] (lower) and P[X > k] (upper) for integer k ≥ 0. */
-function nbTails(k: number, mean: number, phi: number): { lower: number; upper: number } {
+function nbTail(k: number, mean: number, phi: number, upper: boolean): number {
   const pm = phi * mean;
   const r = 1 / phi;
   if (pm < NEAR_POISSON && mean >= 1) {
     // I_p(r, k+1) → Q(k+1, t) as r → ∞ with t = (r + k/2)·ln(1 + phi·mean): a Poisson at a mean shifted by
     // phi·mean·(k − mean)/2, which matches the gamma–Poisson mixture to first order in phi (the leading term of
-    // the large-a expansion of the incomplete beta).
+    // the large-a expansion of the incomplete beta). Q(k+1, t) is P[X ≤ k]; P(k+1, t) is P[X > k].
     const t = (r + k / 2) * Math.log1p(pm);
-    return swap(regularizedGamma(k + 1, t));
+    return regularizedGammaSide(k + 1, t, !upper);
   }
-  return regularizedBeta(1 / (1 + pm), pm / (1 + pm), r, k + 1);
-}
-
-// Q(k+1, t) is P[X ≤ k]; P(k+1, t) is P[X > k].
-function swap(t: { lower: number; upper: number }): { lower: number; upper: number } {
-  return { lower: t.upper, upper: t.lower };
+  return regularizedBetaSide(1 / (1 + pm), pm / (1 + pm), r, k + 1, upper);
 }
 
 // -------------------------------------------------------------------------------------------- quantiles
 
 function cdfOf(k: number, mean: number, phi: number): number {
-  if (phi === 0) return regularizedGamma(k + 1, mean).upper;
-  return nbTails(k, mean, phi).lower;
+  if (phi === 0) return regularizedGammaSide(k + 1, mean, true);
+  return nbTail(k, mean, phi, false);
 }
 
 /** P[X > k] = P[X ≥ k+1]. */
 function sfAbove(k: number, mean: number, phi: number): number {
-  if (phi === 0) return regularizedGamma(k + 1, mean).lower;
-  return nbTails(k, mean, phi).upper;
+  if (phi === 0) return regularizedGammaSide(k + 1, mean, false);
+  return nbTail(k, mean, phi, true);
 }
 
 // pmf(k+1)/pmf(k)

@@ -114,18 +114,42 @@ export function regularizedGamma(a: number, x: number): Tails {
   if (x <= 0) return { lower: 0, upper: 1 };
   if (x === Infinity) return { lower: 1, upper: 0 };
   if (x < a + 1) {
-    // P(a,x) = xᵃe⁻ˣ/Γ(a+1) · Σ xⁿ / ((a+1)…(a+n))
-    let term = 1;
-    let sum = 1;
-    for (let n = 1; n < MAX_ITER; n++) {
-      term *= x / (a + n);
-      sum += term;
-      if (term < sum * EPS) break;
-    }
-    const lower = Math.min(1, poissonDensityRaw(a, x) * sum);
+    const lower = gammaSeriesLower(a, x);
     return { lower, upper: 1 - lower };
   }
-  // Q(a,x) = xᵃe⁻ˣ/Γ(a) · 1/(x+1−a− 1·(1−a)/(x+3−a− 2·(2−a)/(x+5−a− …)))
+  const upper = gammaFractionUpper(a, x);
+  return { lower: 1 - upper, upper };
+}
+
+// The number-only forms below are what the quantile searches call: an object per tail evaluation was most of a
+// close's short-lived garbage. Each side is computed directly where it is the small one, the other as its complement.
+
+/** Q(a, x) when `upper`, else P(a, x); each computed as regularizedGamma's field of that name. */
+export function regularizedGammaSide(a: number, x: number, upper: boolean): number {
+  if (x <= 0) return upper ? 1 : 0;
+  if (x === Infinity) return upper ? 0 : 1;
+  if (x < a + 1) {
+    const lower = gammaSeriesLower(a, x);
+    return upper ? 1 - lower : lower;
+  }
+  const q = gammaFractionUpper(a, x);
+  return upper ? q : 1 - q;
+}
+
+// P(a,x) = xᵃe⁻ˣ/Γ(a+1) · Σ xⁿ / ((a+1)…(a+n))
+function gammaSeriesLower(a: number, x: number): number {
+  let term = 1;
+  let sum = 1;
+  for (let n = 1; n < MAX_ITER; n++) {
+    term *= x / (a + n);
+    sum += term;
+    if (term < sum * EPS) break;
+  }
+  return Math.min(1, poissonDensityRaw(a, x) * sum);
+}
+
+// Q(a,x) = xᵃe⁻ˣ/Γ(a) · 1/(x+1−a− 1·(1−a)/(x+3−a− 2·(2−a)/(x+5−a− …)))
+function gammaFractionUpper(a: number, x: number): number {
   let b = x + 1 - a;
   let c = 1 / TINY;
   let d = 1 / b;
@@ -142,8 +166,7 @@ export function regularizedGamma(a: number, x: number): Tails {
     h *= delta;
     if (Math.abs(delta - 1) < EPS) break;
   }
-  const upper = Math.min(1, a * poissonDensityRaw(a, x) * h);
-  return { lower: 1 - upper, upper };
+  return Math.min(1, a * poissonDensityRaw(a, x) * h);
 }
 
 /**
@@ -155,11 +178,27 @@ export function regularizedBeta(x: number, y: number, a: number, b: number): Tai
   if (x <= 0) return { lower: 0, upper: 1 };
   if (y <= 0) return { lower: 1, upper: 0 };
   if (x < (a + 1) / (a + b + 2)) {
-    const lower = Math.min(1, betaPrefactor(x, y, a, b) * betaContinuedFraction(x, a, b));
+    const lower = betaLowerDirect(x, y, a, b);
     return { lower, upper: 1 - lower };
   }
-  const upper = Math.min(1, betaPrefactor(y, x, b, a) * betaContinuedFraction(y, b, a));
+  const upper = betaLowerDirect(y, x, b, a);
   return { lower: 1 - upper, upper };
+}
+
+function betaLowerDirect(x: number, y: number, a: number, b: number): number {
+  return Math.min(1, betaPrefactor(x, y, a, b) * betaContinuedFraction(x, a, b));
+}
+
+/** 1 − I_x(a, b) when `upper`, else I_x(a, b); each computed as regularizedBeta's field of that name. */
+export function regularizedBetaSide(x: number, y: number, a: number, b: number, upper: boolean): number {
+  if (x <= 0) return upper ? 1 : 0;
+  if (y <= 0) return upper ? 0 : 1;
+  if (x < (a + 1) / (a + b + 2)) {
+    const lower = betaLowerDirect(x, y, a, b);
+    return upper ? 1 - lower : lower;
+  }
+  const up = betaLowerDirect(y, x, b, a);
+  return upper ? up : 1 - up;
 }
 
 // xᵃ yᵇ / (a·B(a,b)) = C(a+b, a)·xᵃyᵇ · b/(a+b), in the saddle-point form.
