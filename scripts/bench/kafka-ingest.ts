@@ -23,6 +23,7 @@ import type { KafkaPort, OutgoingMessage } from '../../src/transport/kafka/kafka
 import { kafkaGroupIds, serveKafka, type KafkaService } from '../../src/transport/kafka/serve-kafka.ts';
 import { createCoreModels } from '../../src/runtime/core-location-model.ts';
 import { tallyModels } from '../../test/integration/kafka-transport/helpers/tally-models.ts';
+import { BenchTrace } from './bench-trace.ts';
 import { hasKcat, kcatRead, openBenchKafka, perSecond as rate, sleep } from './bench-kafka.ts';
 
 const RECORDS = Number(process.env.BENCH_RECORDS ?? 50_000);
@@ -38,11 +39,13 @@ const STALL_MS = 120_000;
 const sensed = { applyMs: 0, orderLines: 0, deadLetters: 0, firstOrderLineCommitMs: 0, lastOrderLineCommitMs: 0 };
 /** Locations each partition's committed (or restored) state holds. */
 const committedLocations = new Map<number, number>();
+/** BENCH_TRACE=1 (or a file name) prints the end-to-end phase's timeline. */
+const trace = new BenchTrace(Boolean(process.env.BENCH_TRACE));
 
 async function main(): Promise<number> {
   const kafka = await openBenchKafka({ partitions: PARTITIONS });
   const { brokers, config, logger } = kafka;
-  const port = timedPort(kafka.port, config.topics.deadLetter);
+  const port = trace.wrap(timedPort(kafka.port, config.topics.deadLetter));
   try {
     console.log(`nearcast Kafka ingest benchmark: ${RECORDS} order lines, ${LOCATIONS} locations × ${ITEMS} items, ${PARTITIONS} partitions, ${MODELS} models`);
     console.log('  (2-core machine shared with other work: wall-clock figures are noisy; CPU time is steadier)');
@@ -65,6 +68,7 @@ async function main(): Promise<number> {
     // 3. End to end over that backlog.
     resetTxStats();
     Object.assign(sensed, { applyMs: 0, orderLines: 0, deadLetters: 0, firstOrderLineCommitMs: 0, lastOrderLineCommitMs: 0 });
+    trace.reset();
     const started = performance.now();
     const cpuStarted = process.cpuUsage();
     const service: KafkaService = await serve();
@@ -72,7 +76,9 @@ async function main(): Promise<number> {
     await until('every order line to be committed by the sensing stage or dead-lettered by the ingest stage', () => handled() >= RECORDS, handled);
     const e2eMs = sensed.lastOrderLineCommitMs - started;
     const e2eCpu = process.cpuUsage(cpuStarted);
+    trace.end();
     await service.stop();
+    trace.print();
 
     const restoreStarted = performance.now();
     const again = await serveKafka(config, logger, { stages: ['sensing'], createStage: timedStage, handleSignals: false, setUpTopics: false, port });
@@ -168,6 +174,7 @@ function timedStage(partition: number): SensingStage {
       if (pending.orderLines > 0) {
         sensed.orderLines += pending.orderLines;
         sensed.lastOrderLineCommitMs = performance.now();
+        if (!sensed.firstOrderLineCommitMs) trace.mark(`sensing stage ${partition}`, 'first order-line batch committed');
         sensed.firstOrderLineCommitMs ||= sensed.lastOrderLineCommitMs;
       }
       pending = { ms: 0, orderLines: 0, deadLetters: 0 };
