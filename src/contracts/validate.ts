@@ -23,16 +23,24 @@ export function describeIssues(issues: readonly Issue[]): string {
 }
 
 export function jsonDepth(value: unknown, limit = MAX_JSON_DEPTH + 1): number {
-  // Iterative so a hostile record cannot blow the stack; stops counting once past the limit.
-  let max = 0;
-  const stack: Array<[unknown, number]> = [[value, 0]];
-  while (stack.length > 0) {
-    const [v, d] = stack.pop()!;
-    if (v === null || typeof v !== 'object') continue;
-    const depth = d + 1;
-    if (depth > max) max = depth;
+  // Stops descending once past the limit, so a hostile record cannot blow the stack; called on every record, so
+  // it walks with for...in rather than allocating an array of children per object.
+  return depthOf(value, 0, limit);
+}
+
+function depthOf(value: unknown, above: number, limit: number): number {
+  if (value === null || typeof value !== 'object') return above;
+  const depth = above + 1;
+  if (depth > limit) return depth;
+  let max = depth;
+  const object = value as Record<string, unknown>;
+  for (const key in object) {
+    if (!Object.hasOwn(object, key)) continue;
+    const child = object[key];
+    if (child === null || typeof child !== 'object') continue;
+    const d = depthOf(child, depth, limit);
+    if (d > max) max = d;
     if (max > limit) return max;
-    for (const child of Object.values(v as Record<string, unknown>)) stack.push([child, depth]);
   }
   return max;
 }
