@@ -71,11 +71,13 @@ function headersIn(headers: IHeaders | undefined): Headers {
 }
 
 function messagesByTopic(messages: readonly OutgoingMessage[]) {
-  const byTopic = new Map<string, { key: string; value: string | Buffer | null; headers?: Record<string, string>; partition?: number }[]>();
+  const byTopic = new Map<string, { key: string; value: string | Buffer | null; headers?: Record<string, string>; partition?: number | undefined }[]>();
   for (const m of messages) {
     let list = byTopic.get(m.topic);
     if (!list) byTopic.set(m.topic, (list = []));
-    list.push({ key: m.key, value: m.value, ...(m.headers ? { headers: { ...m.headers } } : {}), ...(m.partition !== undefined ? { partition: m.partition } : {}) });
+    // kafkajs reads key, value, headers and partition and ignores the rest, so a message goes as it is (no copy
+    // per message); headers are copied since its type wants a mutable record.
+    list.push(m.headers ? { ...m, headers: { ...m.headers } } : m);
   }
   return [...byTopic].map(([topic, msgs]) => ({ topic, messages: msgs }));
 }

@@ -4,11 +4,15 @@ import type { OutgoingMessage } from './kafka-port.ts';
 // kafkajs puts every message of one send for one partition into a single record batch, and the broker refuses a
 // batch above its message size limit. So a transaction's messages are sent in chunks whose total stays under the
 // configured limit; a chunk can then never yield a batch that is too large, whichever partitions it touches.
+// kafkajs also groups one send's messages by partition in time quadratic in their number per partition (each
+// message copies its partition's list so far), so a chunk holds a bounded number of messages as well.
 
 /** Bytes a record adds to its batch beyond key, value and headers (record header varints, attributes; generous). */
 const RECORD_OVERHEAD = 64;
 /** The record batch header (61 bytes in format v2), rounded up. */
 const BATCH_OVERHEAD = 128;
+/** Most messages in one chunk: grouping 50k messages for one partition costs ~200 ms in chunks of 1,800, ~60 in 500. */
+export const MAX_CHUNK_MESSAGES = 500;
 
 function byteLength(v: string | Buffer | null): number {
   if (v === null) return 0;
@@ -21,8 +25,8 @@ export function messageBytes(m: OutgoingMessage): number {
   return size;
 }
 
-/** Splits messages, in order, into consecutive chunks each under `maxBytes`. */
-export function chunkMessages(messages: readonly OutgoingMessage[], maxBytes: number): OutgoingMessage[][] {
+/** Splits messages, in order, into consecutive chunks each under `maxBytes` and of at most `maxCount` messages. */
+export function chunkMessages(messages: readonly OutgoingMessage[], maxBytes: number, maxCount = MAX_CHUNK_MESSAGES): OutgoingMessage[][] {
   const chunks: OutgoingMessage[][] = [];
   let current: OutgoingMessage[] = [];
   let size = BATCH_OVERHEAD;
@@ -33,7 +37,7 @@ export function chunkMessages(messages: readonly OutgoingMessage[], maxBytes: nu
         `a message for ${m.topic} with key ${m.key} takes ${bytes} bytes, above the limit of ${maxBytes - BATCH_OVERHEAD} (kafka.maxMessageBytes)`,
       ]);
     }
-    if (size + bytes > maxBytes && current.length > 0) {
+    if ((size + bytes > maxBytes || current.length >= maxCount) && current.length > 0) {
       chunks.push(current);
       current = [];
       size = BATCH_OVERHEAD;

@@ -14,6 +14,13 @@ describe('transaction chunking', () => {
     for (const c of chunks) expect(128 + c.reduce((s, m) => s + messageBytes(m), 0)).toBeLessThanOrEqual(10_000);
   });
 
+  it('puts at most the given number of small messages in one chunk, in order', () => {
+    const messages = Array.from({ length: 1_201 }, (_, i) => msg(`DC-NORTH|ITEM-${i}`, 10));
+    const chunks = chunkMessages(messages, 900_000, 500);
+    expect(chunks.map((c) => c.length)).toEqual([500, 500, 201]);
+    expect(chunks.flat()).toEqual(messages);
+  });
+
   it('counts key, value and header bytes of a message', () => {
     // 64 overhead + 3 key + 5 value + (8 + 5 + 3) header, worked out by hand.
     expect(messageBytes({ topic: 't', key: 'abc', value: 'hello', headers: { ce_id: 'xyz' } })).toBe(88);
