@@ -24,7 +24,7 @@ export const DEFAULT_INPUT_LIMITS: InputLimits = Object.freeze({
 });
 
 export const ID_MAX_LENGTH = 64;
-const ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9._:-]*$/;
+export const ID_PATTERN = /^[A-Za-z0-9][A-Za-z0-9._:-]*$/;
 
 // Identifiers reach pages, reports and Kafka keys (where `|` separates parts), so they keep to a safe alphabet.
 export const identifier = z

@@ -2,6 +2,7 @@ import type { z } from 'zod';
 import type { ErrorCode } from '../errors.ts';
 import { inputSchemas, type InputRecord, type InputSchemas, type InputType } from './records.ts';
 import { DEFAULT_INPUT_LIMITS, type InputLimits } from './primitives.ts';
+import { fastOrderLineCheck, fastShipmentCheck, type FastCheck } from './record-fast-checks.ts';
 import { utf8Text } from './utf8-text.ts';
 
 export interface Issue {
@@ -55,9 +56,12 @@ function fromZod(error: z.ZodError): Issue[] {
 
 export class RecordValidator {
   private readonly schemas: InputSchemas;
+  /** Plain-code checks of the high-volume types for records that pass; the schema judges whatever they leave. */
+  private readonly fast: Partial<Record<InputType, FastCheck<unknown>>>;
 
   constructor(limits: InputLimits = DEFAULT_INPUT_LIMITS) {
     this.schemas = inputSchemas(limits);
+    this.fast = { 'order-line': fastOrderLineCheck(limits), shipment: fastShipmentCheck(limits) };
   }
 
   /** Validates an already-parsed value. */
@@ -68,6 +72,8 @@ export class RecordValidator {
     if (value === null || typeof value !== 'object' || Array.isArray(value)) {
       return { ok: false, code: 'NEARCAST_INPUT_INVALID', issues: [{ path: '', message: 'must be a JSON object' }] };
     }
+    const fast = this.fast[type]?.(value as Record<string, unknown>);
+    if (fast !== undefined) return { ok: true, value: fast as InputRecord<T> };
     const parsed = this.schemas[type].safeParse(value);
     if (parsed.success) return { ok: true, value: parsed.data as InputRecord<T> };
     return { ok: false, code: 'NEARCAST_INPUT_INVALID', issues: fromZod(parsed.error) };

@@ -31,16 +31,19 @@ function isInputType(type: string): type is InputType {
   return (INPUT_TYPES as readonly string[]).includes(type);
 }
 
+type RefusalCode = Parameters<typeof deadLetter>[0]['code'];
+
+/** A plain function, not a closure made in ingest(): one per record was a measurable part of a large batch's ingest. */
+function refused(raw: RawInput, text: string, code: RefusalCode, issues: { path: string; message: string }[], location: string | null = null): IngestResult {
+  return { ok: false, deadLetter: deadLetter({ type: raw.type, code, issues, stage: 'ingest', source: raw.source, location, arrivalMs: raw.arrivalMs, raw: text }) };
+}
+
 export function ingest(raw: RawInput, validator: RecordValidator): IngestResult {
   const text = utf8Text(raw.value);
-  const refuse = (code: Parameters<typeof deadLetter>[0]['code'], issues: { path: string; message: string }[], location: string | null = null): IngestResult => ({
-    ok: false,
-    deadLetter: deadLetter({ type: raw.type, code, issues, stage: 'ingest', source: raw.source, location, arrivalMs: raw.arrivalMs, raw: text }),
-  });
 
   if (isInputType(raw.type)) {
     const checked = validator.parse(raw.type, text);
-    if (!checked.ok) return refuse(checked.code, [...checked.issues], locationOf(text));
+    if (!checked.ok) return refused(raw, text, checked.code, [...checked.issues], locationOf(text));
     const record = checked.value as { location: string };
     return {
       ok: true,
@@ -58,17 +61,17 @@ export function ingest(raw: RawInput, validator: RecordValidator): IngestResult 
 
   if (raw.type in INTERNAL_SCHEMAS) {
     const kind = raw.type as keyof typeof INTERNAL_SCHEMAS;
-    if (Buffer.byteLength(text, 'utf8') > MAX_RECORD_BYTES) return refuse('NEARCAST_INPUT_TOO_LARGE', [{ path: '', message: `is larger than ${MAX_RECORD_BYTES} bytes` }]);
+    if (Buffer.byteLength(text, 'utf8') > MAX_RECORD_BYTES) return refused(raw, text, 'NEARCAST_INPUT_TOO_LARGE', [{ path: '', message: `is larger than ${MAX_RECORD_BYTES} bytes` }]);
     let value: unknown;
     try {
       value = JSON.parse(text);
     } catch {
-      return refuse('NEARCAST_INPUT_MALFORMED_JSON', [{ path: '', message: 'is not valid JSON' }]);
+      return refused(raw, text, 'NEARCAST_INPUT_MALFORMED_JSON', [{ path: '', message: 'is not valid JSON' }]);
     }
-    if (jsonDepth(value) > MAX_JSON_DEPTH) return refuse('NEARCAST_INPUT_TOO_DEEP', [{ path: '', message: `nests deeper than ${MAX_JSON_DEPTH} levels` }]);
+    if (jsonDepth(value) > MAX_JSON_DEPTH) return refused(raw, text, 'NEARCAST_INPUT_TOO_DEEP', [{ path: '', message: `nests deeper than ${MAX_JSON_DEPTH} levels` }]);
     const parsed = INTERNAL_SCHEMAS[kind].safeParse(value);
     if (!parsed.success) {
-      return refuse(
+      return refused(raw, text, 
         'NEARCAST_INPUT_INVALID',
         parsed.error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message })),
         locationOf(text),
@@ -89,7 +92,7 @@ export function ingest(raw: RawInput, validator: RecordValidator): IngestResult 
     };
   }
 
-  return refuse('NEARCAST_INPUT_UNKNOWN_TYPE', [{ path: '', message: `type must be one of ${[...INPUT_TYPES, ...Object.keys(INTERNAL_SCHEMAS)].join(', ')}` }]);
+  return refused(raw, text, 'NEARCAST_INPUT_UNKNOWN_TYPE', [{ path: '', message: `type must be one of ${[...INPUT_TYPES, ...Object.keys(INTERNAL_SCHEMAS)].join(', ')}` }]);
 }
 
 /** Best-effort location of a refused record, so dead letters can be listed per location; never trusted further. */

@@ -61,7 +61,17 @@ function kafkajsLogLevel(logger: Logger): KafkaLogLevel {
   return logger.isLevelEnabled('error') ? KafkaLogLevel.ERROR : KafkaLogLevel.NOTHING;
 }
 
+/** Shared by every message without headers (nearly all of them), instead of an empty object each. */
+const NO_HEADERS: Headers = Object.freeze({});
+
 function headersIn(headers: IHeaders | undefined): Headers {
+  if (headers === undefined) return NO_HEADERS;
+  let any = false;
+  for (const _ in headers) {
+    any = true;
+    break;
+  }
+  if (!any) return NO_HEADERS;
   const out: Record<string, string> = {};
   for (const [k, v] of Object.entries(headers ?? {})) {
     if (v === undefined) continue;
