@@ -71,7 +71,9 @@ export function ingest(raw: RawInput, validator: RecordValidator): IngestResult 
     if (jsonDepth(value) > MAX_JSON_DEPTH) return refused(raw, text, 'NEARCAST_INPUT_TOO_DEEP', [{ path: '', message: `nests deeper than ${MAX_JSON_DEPTH} levels` }]);
     const parsed = INTERNAL_SCHEMAS[kind].safeParse(value);
     if (!parsed.success) {
-      return refused(raw, text, 
+      return refused(
+        raw,
+        text,
         'NEARCAST_INPUT_INVALID',
         parsed.error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message })),
         locationOf(text),

@@ -59,19 +59,15 @@ export function trainingRows(
   // Series by series (each series' frame is read for all its weeks while in cache); the rows come out grouped by
   // series, weeks newest first within each.
   const weeks = s.lookbackWeeks;
-  const sigOf: TrainingSignals[] = [];
   const recencyOf = new Float64Array(weeks + 1);
-  for (let n = 1; n <= weeks; n++) {
-    sigOf[n] = signals[n + lead]!;
-    recencyOf[n] = recencyWeight(n - 1, s.halfLifeWeeks);
-  }
+  for (let n = 1; n <= weeks; n++) recencyOf[n] = recencyWeight(n - 1, s.halfLifeWeeks);
   for (let i = 0; i < inputs.length; i++) {
     const input = inputs[i]!;
     const frame = input.frame;
     const first = frame.firstActivityDay;
     if (first === null) continue;
     for (let n = 1; n <= weeks; n++) {
-      const sig = sigOf[n]!;
+      const sig = signals[n + lead]!;
       const ref = sig.ref[i];
       if (!sig.present[i] || !ref) continue;
       const p = ctx.H - n;

@@ -73,7 +73,7 @@ function headersIn(headers: IHeaders | undefined): Headers {
   }
   if (!any) return NO_HEADERS;
   const out: Record<string, string> = {};
-  for (const [k, v] of Object.entries(headers ?? {})) {
+  for (const [k, v] of Object.entries(headers)) {
     if (v === undefined) continue;
     out[k] = Array.isArray(v) ? String(v.at(-1) ?? '') : v.toString();
   }
