@@ -1,6 +1,8 @@
 import type { LocationCalendar } from '../calendar/location-calendar.ts';
 import { asOfSignals, trainingPart, type TrainingSignals } from './as-of-signals.ts';
+import { weekStartOf } from '../calendar/weeks.ts';
 import { knowledgeStamp, knownSince, trimKnowledgeLog } from './knowledge-log.ts';
+import { LAG_UNKNOWN } from './line-parts.ts';
 import type { LocationState } from './location-state.ts';
 import type { RecomputeContext } from './recompute-context.ts';
 import type { SeriesInput } from './series-input.ts';
@@ -10,7 +12,10 @@ import type { SensingSettings } from './settings.ts';
 // once computed they hold until a record known on or before D arrives. A close therefore computes the signals of
 // its own day and takes the 17 older as-of days it trains on from earlier closes. Kept signals are used only when a
 // fresh computation would give the same numbers: same settings, calendar and shipment lag, the same input series
-// with the same first-activity days, and no late record since; anything else computes them again.
+// with the same first-activity days, and no late record since; anything else computes them again. A prune keeps
+// most of them: it drops only rows no training window reads, and the series remember their first activity across
+// it; but the rows left can be judged anew (a customer's first remaining line now looks like a first fill, a line's
+// size is weighed against a shorter history), and the days whose windows read those rows are computed again.
 
 /** The input series of a close and their first-activity days: kept signals are per input index. */
 interface Layout {
@@ -126,8 +131,19 @@ export function keepLiveSignals(state: LocationState, inputs: readonly SeriesInp
   keep(state, inputs, ctx, lag, ctx.planDay, live);
 }
 
-/** Forgets every kept signal of the location (after a prune, which may change what a fresh computation sees). */
-export function forgetKeptSignals(state: LocationState): void {
-  kept.delete(state);
-  lastLayout.delete(state);
+/**
+ * After a prune: forgets the kept days whose recent windows reach a row judged differently since (requested on or
+ * before `rejudgedUpTo`; +Infinity forgets every day, −Infinity none). The windows read weeks by requested day,
+ * moved by the shipment lag on the shipments basis.
+ */
+export function forgetKeptSignalsReading(state: LocationState, rejudgedUpTo: number): void {
+  const byDay = kept.get(state);
+  if (!byDay || rejudgedUpTo === -Infinity) return;
+  for (const [day, k] of byDay) {
+    const s = k.settings;
+    const windows = Math.max(s.recentWeeks, s.bookProfileWeeks, s.smallSeriesWeeks, s.runRateWeeks);
+    const oldestRead = weekStartOf(day, k.calendar.weekStart) - 7 * windows;
+    const shift = k.lag !== LAG_UNKNOWN && k.lag > 0 ? k.lag : 0;
+    if (oldestRead <= rejudgedUpTo + shift) byDay.delete(day);
+  }
 }

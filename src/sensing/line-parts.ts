@@ -121,6 +121,13 @@ class PartsWalk {
     this.baselinesSeen = new Set(series.baselines);
   }
 
+  /** The flags (PART_…) the walk gave each row of the line table, below `rows` (0 for superseded rows). */
+  flagsOfRows(rows: number): Int32Array {
+    const out = new Int32Array(rows);
+    out.set(this.rowFlags.subarray(0, Math.min(rows, this.rowFlags.length)));
+    return out;
+  }
+
   /** Takes the series' new versions and rows; false when they do not all come after what was walked. */
   extend(): boolean {
     for (const b of this.series.baselines) {
@@ -260,6 +267,18 @@ export function seriesParts(series: SeriesState, settings: SensingSettings, week
   const parts = finishParts(series, walk);
   cache.set(series, { changeCount: series.changeCount, layoutCount: series.layoutCount, walk, parts });
   return parts;
+}
+
+/**
+ * The flags of every line row as the series' parts judge them now, with the settings and week start of its last
+ * recompute; undefined when it has none (a prune compares the flags before and after; see as-of-cache.ts).
+ */
+export function judgedRowFlags(series: SeriesState): { readonly flags: Int32Array; readonly settings: SensingSettings; readonly weekStart: number } | undefined {
+  const hit = cache.get(series);
+  if (!hit) return undefined;
+  seriesParts(series, hit.walk.settings, hit.walk.weekStart);
+  const walk = cache.get(series)!.walk;
+  return { flags: walk.flagsOfRows(series.lines.length), settings: walk.settings, weekStart: walk.weekStart };
 }
 
 /** The parts from a fresh walk of the whole history (what the incremental path must always equal). */

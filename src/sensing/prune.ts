@@ -1,7 +1,8 @@
 import { weekStartOf } from '../calendar/weeks.ts';
-import { forgetKeptSignals } from './as-of-cache.ts';
 import type { LocationState } from './location-state.ts';
-import { reindexSeries } from './series-state.ts';
+import { forgetKeptSignalsReading } from './as-of-cache.ts';
+import { judgedRowFlags } from './line-parts.ts';
+import { reindexSeries, type SeriesState } from './series-state.ts';
 
 export interface PruneResult {
   readonly lineRows: number;
@@ -13,45 +14,56 @@ export interface PruneResult {
 /**
  * Drops what can no longer change any plan or training row: lines whose every revision lies (by requested date
  * and by knowledge time) before the retention window, shipments likewise, baseline versions superseded before it,
- * and baseline weeks before it. Event ids go with their rows.
+ * and baseline weeks before it. Event ids go with their rows. The series' first activity is remembered
+ * (`prunedFirst…`). What the rows left are judged to be can still change (first fills, large lines, both judged
+ * against earlier lines): the kept signals that read such a row are forgotten, the rest stay exact.
  */
 export function pruneLocationState(state: LocationState, asOfDay: number): PruneResult {
-  forgetKeptSignals(state);
   const cutoff = weekStartOf(asOfDay, state.calendar.weekStart) - 7 * state.retentionWeeks;
   let lineRows = 0;
   let shipments = 0;
   let baselineVersions = 0;
   let series = 0;
+  // Latest requested day of a remaining row whose parts' flags the prune changed (see as-of-cache.ts).
+  let rejudgedUpTo = -Infinity;
   for (const [item, s] of state.series) {
     const L = s.lines.cols;
     const liveLines = new Set<number>();
     for (let i = 0; i < s.lines.length; i++) {
       if (L.requestedDay[i]! >= cutoff || L.knownDay[i]! >= cutoff) liveLines.add(L.lineHash[i]!);
     }
+    const keptRows: number[] = [];
+    for (let i = 0; i < s.lines.length; i++) {
+      if (liveLines.has(L.lineHash[i]!)) keptRows.push(i);
+      else if (L.quantity[i]! > 0) s.prunedFirstRequested = Math.min(s.prunedFirstRequested, L.requestedDay[i]!);
+    }
+    // Flags depend on the baseline versions known then too, which the prune may drop: compared for every series.
+    const judgedBefore = s.lines.length > 0 ? judgedRowFlags(s) : undefined;
     lineRows += s.lines.filter((i) => liveLines.has(L.lineHash[i]!));
     const S = s.shipments.cols;
-    shipments += s.shipments.filter((i) => S.shipDay[i]! >= cutoff || S.knownDay[i]! >= cutoff);
+    const liveShipment = (i: number) => S.shipDay[i]! >= cutoff || S.knownDay[i]! >= cutoff;
+    for (let i = 0; i < s.shipments.length; i++) if (!liveShipment(i)) s.prunedFirstShipped = Math.min(s.prunedFirstShipped, S.shipDay[i]!);
+    shipments += s.shipments.filter(liveShipment);
 
     let current = -1;
     for (const b of s.baselines) if (b.knownDay <= cutoff && b.version > current) current = b.version;
     const before = s.baselines.length;
     const kept = s.baselines.filter((b) => b.version >= current || b.knownDay >= cutoff);
     for (const b of kept) {
-      // A version superseded on day S is still the one in force for as-of days before S; it needs weeks up to a
-      // few leads beyond S, not its whole horizon.
-      let supersededDay = Infinity;
-      for (const o of kept) if (o.version > b.version && o.knownDay < supersededDay) supersededDay = o.knownDay;
-      const keep: number[] = [];
-      for (let i = 0; i < b.weeks.length; i++) if (b.weeks[i]! >= cutoff && b.weeks[i]! <= supersededDay + 63) keep.push(i);
-      if (keep.length !== b.weeks.length) {
-        b.weeks = Int32Array.from(keep.map((i) => b.weeks[i]!));
-        b.quantities = Float64Array.from(keep.map((i) => b.quantities[i]!));
+      // Weeks before the window go. A superseded version keeps the rest of its horizon: rebasing a week's baseline
+      // onto a later version weighs the two over their first common weeks, which can lie well past its supersession.
+      let from = 0;
+      while (from < b.weeks.length && b.weeks[from]! < cutoff) from++;
+      if (from > 0) {
+        b.weeks = b.weeks.slice(from);
+        b.quantities = b.quantities.slice(from);
       }
     }
     s.baselines.length = 0;
     s.baselines.push(...kept.filter((b) => b.weeks.length > 0 || b.knownDay >= cutoff));
     baselineVersions += before - s.baselines.length;
     reindexSeries(s);
+    if (keptRows.length > 0) rejudgedUpTo = Math.max(rejudgedUpTo, rejudged(s, judgedBefore, keptRows));
     if (s.lines.length === 0 && s.shipments.length === 0 && s.baselines.length === 0) {
       state.series.delete(item);
       series++;
@@ -59,6 +71,7 @@ export function pruneLocationState(state: LocationState, asOfDay: number): Prune
   }
   for (const d of state.closedDays) if (d < cutoff) state.closedDays.delete(d);
   compactCustomers(state);
+  forgetKeptSignalsReading(state, rejudgedUpTo);
   return { lineRows, shipments, baselineVersions, series };
 }
 
@@ -82,4 +95,14 @@ function compactCustomers(state: LocationState): void {
   state.customers.push(...names);
   state.customerIndex.clear();
   names.forEach((c, i) => state.customerIndex.set(c, i));
+}
+
+/** Latest requested day of a remaining line row whose flags changed (+Infinity when the flags before are unknown). */
+function rejudged(s: SeriesState, before: ReturnType<typeof judgedRowFlags>, keptRows: readonly number[]): number {
+  if (!before) return Infinity;
+  const after = judgedRowFlags(s)!.flags;
+  const req = s.lines.cols.requestedDay;
+  let latest = -Infinity;
+  for (let i = 0; i < keptRows.length; i++) if (after[i] !== before.flags[keptRows[i]!] && req[i]! > latest) latest = req[i]!;
+  return latest;
 }

@@ -60,7 +60,21 @@ function cutOf(c0: number, kd: number, NC: number): number {
   return j >= NC ? NC : j;
 }
 
-export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagDays: number, arrays: ScratchArrays = FRESH_ARRAYS): SeriesFrame {
+/** What a prune remembered of the dropped rows' first activity (see SeriesState). */
+export interface PrunedFirst {
+  readonly prunedFirstRequested: number;
+  readonly prunedFirstShipped: number;
+}
+
+const NOTHING_PRUNED: PrunedFirst = { prunedFirstRequested: Infinity, prunedFirstShipped: Infinity };
+
+export function buildSeriesFrame(
+  parts: SeriesParts,
+  ctx: RecomputeContext,
+  lagDays: number,
+  arrays: ScratchArrays = FRESH_ARRAYS,
+  pruned: PrunedFirst = NOTHING_PRUNED,
+): SeriesFrame {
   const { nWeeks, NC, firstDay, nDays, k, cutoffMs } = ctx;
   const maxLead = ctx.settings.maxLead;
   const shipBasis = ctx.settings.demandBasis === 'shipments';
@@ -83,7 +97,8 @@ export function buildSeriesFrame(parts: SeriesParts, ctx: RecomputeContext, lagD
   const dayDemand = arrays.f64(nDays);
   const dayIntake = arrays.f64(nDays);
   const dayDue = shipBasis ? arrays.f64(nDays) : dayDemand;
-  let firstActivity: number | null = null;
+  const prunedFirst = shipBasis ? pruned.prunedFirstShipped : pruned.prunedFirstRequested;
+  let firstActivity: number | null = Number.isFinite(prunedFirst) ? prunedFirst : null;
   let knownAfterCutoffDay = Infinity;
 
   const shift = shipBasis && lagDays !== LAG_UNKNOWN ? lagDays : 0;

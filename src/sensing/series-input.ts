@@ -28,7 +28,7 @@ export function prepareSeries(
   lagDays: number,
   arrays: ScratchArrays = FRESH_ARRAYS,
 ): SeriesInput {
-  const frame = buildSeriesFrame(parts, ctx, lagDays, arrays);
+  const frame = buildSeriesFrame(parts, ctx, lagDays, arrays, series);
   const ref: Array<BaselineVersionEntry | undefined> = [];
   for (let j = 0; j <= ctx.J; j++) ref.push(versionKnownAt(series, ctx.planDay - 7 * j, ctx.cutoffMs));
   const weekBase = arrays.f64(ctx.nWeeks).fill(NaN);

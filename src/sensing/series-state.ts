@@ -60,6 +60,13 @@ export interface SeriesState {
   changeCount: number;
   /** Bumped when rows are removed or re-indexed, or the calendar changes: views built by appending start over. */
   layoutCount: number;
+  /**
+   * Earliest requested day of a positive line, and earliest ship day, among the rows a prune has dropped (Infinity
+   * when none). A series' first activity must not move when its oldest rows leave: it decides which weeks the
+   * series existed in and how many weeks of history it has, so a prune would otherwise change past as-of signals.
+   */
+  prunedFirstRequested: number;
+  prunedFirstShipped: number;
 }
 
 /** A new series; a restore passes the tables it loaded (reindexSeries must follow). */
@@ -74,6 +81,8 @@ export function createSeriesState(item: string, tables?: { readonly lines: LineT
     eventIds: new HashIndex(tables ? tables.lines.length + tables.shipments.length : undefined),
     changeCount: 0,
     layoutCount: 0,
+    prunedFirstRequested: Infinity,
+    prunedFirstShipped: Infinity,
   };
 }
 

@@ -47,6 +47,9 @@ export interface SeriesSnapshot {
   readonly lines: Record<string, string | number[]>;
   readonly shipments: Record<string, string | number[]>;
   readonly baselines: BaselineColumnsSnapshot | readonly BaselineSnapshotV1[];
+  /** First activity of rows a prune dropped (see SeriesState); absent when nothing was dropped. */
+  readonly prunedFirstRequested?: number;
+  readonly prunedFirstShipped?: number;
 }
 
 export interface LocationStateSnapshot {
@@ -144,6 +147,8 @@ export function snapshotLocationState(state: LocationState): LocationStateSnapsh
       lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
       shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
       baselines: baselineColumns(s.baselines),
+      ...(Number.isFinite(s.prunedFirstRequested) ? { prunedFirstRequested: s.prunedFirstRequested } : {}),
+      ...(Number.isFinite(s.prunedFirstShipped) ? { prunedFirstShipped: s.prunedFirstShipped } : {}),
     };
   });
   return {
@@ -224,6 +229,12 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
     s.baselines.push(entry);
   }
   s.baselines.sort((a, b) => a.version - b.version);
+  for (const k of ['prunedFirstRequested', 'prunedFirstShipped'] as const) {
+    const v: unknown = snap[k];
+    if (v === undefined) continue;
+    if (!Number.isSafeInteger(v)) corrupt(`series ${snap.item}: ${k} is not a day number`);
+    s[k] = v as number;
+  }
   reindexSeries(s);
   return s;
 }

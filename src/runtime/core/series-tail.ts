@@ -59,7 +59,7 @@ function slice(cols: Plain, from: number, to?: number): Plain {
 
 /** Over the numbers' bits rather than their JSON text (cheaper; a -0 that JSON would write as 0 only forces a full save). */
 function digestOf(snap: SeriesSnapshot, linesCols: Plain, shipmentCols: Plain, lines: number, shipments: number): string {
-  const hash = createHash('sha256').update(JSON.stringify([snap.item, snap.baselines]));
+  const hash = createHash('sha256').update(JSON.stringify([snap.item, snap.baselines, snap.prunedFirstRequested ?? null, snap.prunedFirstShipped ?? null]));
   const add = (table: string, cols: Plain, n: number) => {
     for (const [name, values] of Object.entries(cols)) {
       hash.update(`\u0000${table}.${name}:${n}:`);

@@ -69,6 +69,7 @@ describe('signals kept between closes', () => {
       let fixes = 0;
       // A close reuses its scratch memory at the next one: what it returned must not be a view into it.
       let previous: { result: ReturnType<typeof senseLocation>; text: string } | undefined;
+      let afterPrune = { reused: 0, computed: 0 };
       for (let k = 1; k <= 25; k++) {
         const d = dayOf(sc, 18, k);
         while (next < pending.length && pending[next]!.dueMs <= closeOf(d) + HOUR) {
@@ -88,7 +89,9 @@ describe('signals kept between closes', () => {
         if (k === 14) pruneLocationState(state, dayNumber(d));
         if (k % 7 >= 5) continue;
         const asOf = { planDate: d, knownAt: closeOf(d) };
+        const before = keptSignalCounts(state);
         const kept = senseLocation(state, asOf, settings);
+        if (k === 14) afterPrune = { reused: keptSignalCounts(state).reused - before.reused, computed: keptSignalCounts(state).computed - before.computed };
         const fresh = senseLocation(cloneLocationState(state), asOf, settings);
         expect(kept.plans).toEqual(fresh.plans);
         expect(kept.model).toEqual(fresh.model);
@@ -103,6 +106,8 @@ describe('signals kept between closes', () => {
       const counts = keptSignalCounts(state);
       expect(counts.reused).toBeGreaterThan(40);
       expect(counts.computed).toBeGreaterThan(19);
+      // The prune keeps the kept signals (here it drops no line, only baseline weeks before the window).
+      expect(afterPrune.reused).toBeGreaterThanOrEqual(15);
     },
   );
 
@@ -131,4 +136,61 @@ describe('signals kept between closes', () => {
     expect(after.reused - before.reused).toBe(16);
     expect(after.computed - before.computed).toBe(1);
   });
+
+  it.each(BASES)(
+    'survive (%s basis) a prune that drops old rows, except the days whose windows read a line the prune makes look different',
+    (_basis, settings) => {
+      // C-ONCE orders in week 3 and again in week 12: once week 3 is pruned, its week-12 line is a customer's first
+      // fill. C-BIG orders 100 in weeks 2-4 and 250 in week 12: against its own history the 250 is ordinary, but with
+      // weeks 2-4 pruned it is weighed against the series' small lines and becomes a large line. The days whose
+      // recent windows read week 12 must be computed again; the rest stay.
+      const series: SeriesSpec[] = Array.from({ length: 6 }, (_, i) => ({
+        item: `TONIC-${i}`,
+        perDay: [8, 30, 60, 120, 15, 45][i]!,
+        noise: 0.05,
+        earlyShare: 0.3,
+        reviseShare: 0.2,
+        ...(i === 2 ? {
+              extraLines: [
+                [3, 2, 40, 'C-ONCE'],
+                [12, 2, 40, 'C-ONCE'],
+                [2, 3, 100, 'C-BIG'],
+                [3, 3, 100, 'C-BIG'],
+                [4, 3, 100, 'C-BIG'],
+                [12, 3, 250, 'C-BIG'],
+              ] as [number, number, number, string][],
+            } : {}),
+      }));
+      const sc = generateScenario({ seed: 12, weeks: 40, series, withShipments: settings !== undefined });
+      const state = createLocationState(sc.master, settings);
+      const pruneDay = dayOf(sc, 36, 0);
+      let next = 0;
+      const feed = (until: number) => {
+        while (next < sc.records.length && sc.records[next]!.knownMs <= until) apply(state, sc.records[next++]!);
+      };
+      let reusedAfterPrune = 0;
+      let computedAfterPrune = 0;
+      let dropped = 0;
+      for (let k = -7; k <= 4; k++) {
+        const d = dayOf(sc, 36, k);
+        if ((k + 7) % 7 >= 5) continue;
+        feed(closeOf(d));
+        const asOf = { planDate: d, knownAt: closeOf(d) };
+        const before = keptSignalCounts(state);
+        const kept = senseLocation(state, asOf, settings);
+        expect(kept.plans).toEqual(senseLocation(cloneLocationState(state), asOf, settings).plans);
+        if (d === pruneDay) {
+          dropped = pruneLocationState(state, dayNumber(d)).lineRows;
+        } else if (k === 1) {
+          reusedAfterPrune = keptSignalCounts(state).reused - before.reused;
+          computedAfterPrune = keptSignalCounts(state).computed - before.computed;
+        }
+      }
+      expect(dropped).toBeGreaterThan(100);
+      // Of the 17 past as-of days the close after the prune trains on, the oldest read week 12 again.
+      expect(computedAfterPrune).toBeGreaterThan(0);
+      expect(reusedAfterPrune).toBeGreaterThan(8);
+      expect(reusedAfterPrune + computedAfterPrune).toBe(17);
+    },
+  );
 });
