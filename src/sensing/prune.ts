@@ -37,8 +37,10 @@ export function pruneLocationState(state: LocationState, asOfDay: number): Prune
       if (liveLines.has(L.lineHash[i]!)) keptRows.push(i);
       else if (L.quantity[i]! > 0) s.prunedFirstRequested = Math.min(s.prunedFirstRequested, L.requestedDay[i]!);
     }
-    // Flags depend on the baseline versions known then too, which the prune may drop: compared for every series.
-    const judgedBefore = s.lines.length > 0 ? judgedRowFlags(s) : undefined;
+    // Flags depend on the earlier lines and on the baseline versions known then: judged again only when either goes.
+    const linesBefore = s.lines.length;
+    const judgedBefore = linesBefore > 0 ? judgedRowFlags(s) : undefined;
+    let baselinesCut = false;
     lineRows += s.lines.filter((i) => liveLines.has(L.lineHash[i]!));
     const S = s.shipments.cols;
     const liveShipment = (i: number) => S.shipDay[i]! >= cutoff || S.knownDay[i]! >= cutoff;
@@ -55,6 +57,7 @@ export function pruneLocationState(state: LocationState, asOfDay: number): Prune
       let from = 0;
       while (from < b.weeks.length && b.weeks[from]! < cutoff) from++;
       if (from > 0) {
+        baselinesCut = true;
         b.weeks = b.weeks.slice(from);
         b.quantities = b.quantities.slice(from);
       }
@@ -62,8 +65,9 @@ export function pruneLocationState(state: LocationState, asOfDay: number): Prune
     s.baselines.length = 0;
     s.baselines.push(...kept.filter((b) => b.weeks.length > 0 || b.knownDay >= cutoff));
     baselineVersions += before - s.baselines.length;
+    baselinesCut ||= s.baselines.length < before;
     reindexSeries(s);
-    if (keptRows.length > 0) rejudgedUpTo = Math.max(rejudgedUpTo, rejudged(s, judgedBefore, keptRows));
+    if (keptRows.length > 0 && (keptRows.length < linesBefore || baselinesCut)) rejudgedUpTo = Math.max(rejudgedUpTo, rejudged(s, judgedBefore, keptRows));
     if (s.lines.length === 0 && s.shipments.length === 0 && s.baselines.length === 0) {
       state.series.delete(item);
       series++;
