@@ -15,7 +15,8 @@ import { createSensingStage } from '../../src/runtime/sensing-stage.ts';
 import { EmbeddedStore } from '../../src/transport/embedded/embedded-store.ts';
 import { benchChangelog, buildBenchLocation, type BenchLocation } from './bench-state.ts';
 
-/** BENCH_PROFILE=path writes a CPU profile of the measured (last) close only (path.<series>.cpuprofile). */
+/** BENCH_PROFILE=path writes a CPU profile of the measured (last) close only (path.<series>.cpuprofile); BENCH_PROFILE_DATE=YYYY-MM-DD
+ * profiles that day's close instead (e.g. the Monday close, which prunes). */
 const profiler = process.env.BENCH_PROFILE ? new Session() : undefined;
 if (profiler) {
   profiler.connect();
@@ -62,6 +63,7 @@ const closeRecord = (date: string, atMs: number): EventLogRecord => ({
   source: { kind: 'internal', origin: 'cli' },
   record: { eventId: `close-${date}`, location: master.location as never, date },
 });
+const profiledDay = process.env.BENCH_PROFILE_DATE ?? day;
 const closes: { date: string; wallMs: number; cpuMs: number }[] = [];
 let result: ReturnType<typeof stage.apply> | undefined;
 let lastMs = lastFact.arrivalMs;
@@ -69,7 +71,7 @@ for (const date of businessDays) {
   const todays = held.filter((r) => localDateOf(r.arrivalMs, master.timeZone) <= date && r.arrivalMs > (closes.length === 0 ? -Infinity : lastMs));
   if (todays.length > 0) applyBatch(todays);
   for (const r of todays) lastMs = Math.max(lastMs, r.arrivalMs);
-  if (profiler && date === day) await profiler.post('Profiler.start');
+  if (profiler && date === profiledDay) await profiler.post('Profiler.start');
   const cpu0 = process.cpuUsage();
   const t6 = performance.now();
   result = stage.apply([{ offset: String(offset++), record: closeRecord(date, lastMs + 1) }]);
@@ -77,8 +79,12 @@ for (const date of businessDays) {
   const cpu = process.cpuUsage(cpu0);
   closes.push({ date, wallMs: wall, cpuMs: (cpu.user + cpu.system) / 1000 });
   if (date !== day) stage.commit();
+  if (profiler && date === profiledDay && date !== day) {
+    const { profile } = await profiler.post('Profiler.stop');
+    writeFileSync(`${process.env.BENCH_PROFILE}.${series}.cpuprofile`, JSON.stringify(profile));
+  }
 }
-if (profiler) {
+if (profiler && profiledDay === day) {
   const { profile } = await profiler.post('Profiler.stop');
   writeFileSync(`${process.env.BENCH_PROFILE}.${series}.cpuprofile`, JSON.stringify(profile));
 }

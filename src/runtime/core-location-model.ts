@@ -45,6 +45,8 @@ interface CoreSnapshot {
   /** Last closed plan date, and order lines for already closed days applied since (late data for monitoring). */
   lastClosed: string | null;
   late: Record<string, { date: string; quantity: number }[]>;
+  /** See CoreLocationModel.pruneDue; absent when no prune waits. */
+  pruneDue?: number;
 }
 
 interface CoreSensedDay extends SensedDay {
@@ -77,13 +79,22 @@ class CoreLocationModel implements LocationModel {
   private writtenC = new Set<string>();
   /** Each series' last full save (`f:`) in this process; none after a restore, so the first save is full. */
   private fullSaves = new Map<string, FullSave>();
+  /**
+   * The day of a close that completed a week, while its prune of old rows has not run yet. The prune rewrites every
+   * series' saved rows (tens of megabytes at 10k series), so it runs before whatever next touches the sensing state
+   * rather than inside the close: the close's plans and manifest are committed without waiting for it. The state
+   * goes through the same steps in the same order either way, and the prune changes no plan (see prune.ts).
+   */
+  private pruneDue: number | null;
 
   constructor(
     private sensing: LocationState,
     private s: Omit<CoreSnapshot, 'sensing'>,
     private readonly settings: CoreSettings,
     restoredParts = false,
+    pruneDue: number | null = null,
   ) {
+    this.pruneDue = pruneDue;
     if (restoredParts) {
       this.dirtyS = new Set();
       this.dirtyC = new Set();
@@ -101,11 +112,21 @@ class CoreLocationModel implements LocationModel {
     return [...new Set([...Object.keys(this.s.monitor.series), ...Object.keys(this.s.previous), ...Object.keys(this.s.ledger.series)])];
   }
 
+  private pruneIfDue(): void {
+    if (this.pruneDue === null) return;
+    pruneLocationState(this.sensing, this.pruneDue);
+    this.pruneDue = null;
+    // Old rows left every series' saved rows: each is saved in full again.
+    this.dirtyS = null;
+  }
+
   setMaster(location: Location): void {
+    this.pruneIfDue();
     applyLocationMaster(this.sensing, location);
   }
 
   apply(r: FactRecord): ApplyOutcome {
+    this.pruneIfDue();
     const customers = this.sensing.customers.length;
     const result = this.applyToSensing(r);
     if (result.status !== 'rejected' && r.kind !== 'day-closed') this.touchS(r.record.item);
@@ -141,6 +162,8 @@ class CoreLocationModel implements LocationModel {
   }
 
   sense(asOf: SenseAsOf): CoreSensedDay {
+    // A close with no record since the one that completed a week (the deadline or the watermark closed it).
+    this.pruneIfDue();
     const result = senseLocation(this.sensing, { planDate: asOf.planDate, knownAt: asOf.knowledgeMs }, this.settings.sensing, {
       selfCheckFallbacks: this.fallbacks(),
       previousPlans: toPlans(this.sensing.location, this.s.previous),
@@ -189,9 +212,9 @@ class CoreLocationModel implements LocationModel {
     // Monitoring updates every series it watches at each close.
     this.dirtyC = null;
     if (completed.length > 0) {
-      // Old rows leave the state once a week; that rewrites every series' saved rows.
-      pruneLocationState(this.sensing, dayNumber(facts.planDate));
-      this.dirtyS = null;
+      // Old rows leave the state once a week, before the next change (see pruneDue).
+      this.pruneIfDue();
+      this.pruneDue = dayNumber(facts.planDate);
     }
     return { alerts: result.alerts, replan: result.replan ?? [], accuracy };
   }
@@ -219,7 +242,12 @@ class CoreLocationModel implements LocationModel {
   }
 
   snapshot(): CoreSnapshot {
-    return { sensing: snapshotLocationState(this.sensing), ...this.s };
+    return { sensing: snapshotLocationState(this.sensing), ...this.s, ...this.pruneDueField() };
+  }
+
+  /** Written only while a prune waits, so a location never waiting snapshots as it did before the field existed. */
+  private pruneDueField(): { pruneDue?: number } {
+    return this.pruneDue === null ? {} : { pruneDue: this.pruneDue };
   }
 
   snapshotParts(): { base: unknown; parts: ReadonlyMap<string, unknown> } {
@@ -267,6 +295,7 @@ class CoreLocationModel implements LocationModel {
       selfCheck: this.s.selfCheck,
       lastClosed: this.s.lastClosed,
       late: this.s.late,
+      ...this.pruneDueField(),
     };
     return { base, parts };
   }
@@ -295,6 +324,8 @@ export function createCoreModelsFrom(settings: CoreSettings): LocationModelFacto
           late: snap.late,
         },
         settings,
+        false,
+        snap.pruneDue ?? null,
       );
     },
     restoreParts: (baseValue, parts) => {
@@ -304,6 +335,7 @@ export function createCoreModelsFrom(settings: CoreSettings): LocationModelFacto
         { monitor: restoreMonitorState(a.monitor), previous: a.previous, ledger: a.ledger, scorecard: a.scorecard, selfCheck: a.selfCheck, lastClosed: a.lastClosed, late: a.late },
         settings,
         true,
+        (baseValue as PartedBase).pruneDue ?? null,
       );
     },
   };

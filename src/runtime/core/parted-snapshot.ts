@@ -26,6 +26,8 @@ export interface PartedBase {
   selfCheck: SelfCheckState;
   lastClosed: string | null;
   late: Record<string, { date: string; quantity: number }[]>;
+  /** Day number of a close whose weekly prune has not run yet (absent when none waits). */
+  pruneDue?: number;
 }
 
 export type ClosePart = { m: MonitorState['series'][string] | null; p: [string, number][] | null; l: WeekLedger['series'][string] | null };

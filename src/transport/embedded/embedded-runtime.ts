@@ -1,4 +1,5 @@
 import type { Location } from '../../contracts/location.ts';
+import { cutAfterCloses } from '../../runtime/batch-cuts.ts';
 import { deadLetterKey, type DeadLetterRecord } from '../../runtime/dead-letter.ts';
 import type { EventLogRecord } from '../../runtime/event-log-record.ts';
 import type { LocationModelFactory } from '../../runtime/location-model-port.ts';
@@ -81,7 +82,8 @@ export class EmbeddedRuntime {
       for (;;) {
         const from = Number(stage.nextOffset());
         if (from >= this.store.logEnd(stage.partition)) break;
-        const batch = this.store.readEvents(stage.partition, from, this.batchSize);
+        // Up to the first record that closes a day: its plans and manifest commit without what follows (batch-cuts.ts).
+        const batch = cutAfterCloses(this.store.readEvents(stage.partition, from, this.batchSize))[0]!;
         const result = stage.apply(batch);
         try {
           this.store.transaction(() => {

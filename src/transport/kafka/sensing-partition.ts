@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { Topics } from '../../config/topics.ts';
 import type { Logger } from '../../log.ts';
 import { deadLetter } from '../../runtime/dead-letter.ts';
+import { cutAfterCloses } from '../../runtime/batch-cuts.ts';
 import { decodeEventLogRecord, encodeEventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
 import type { SensingStage } from '../../runtime/sensing-stage-port.ts';
 import { applyPartCounts, BARRIER_KEY, decodeChangelog, encodeChangelog, type PartCounts } from './changelog-codec.ts';
@@ -125,27 +126,39 @@ export class SensingPartition {
       return;
     }
     const { entries, unreadable } = this.decode(fresh);
+    const end = BigInt(fresh.at(-1)!.offset) + 1n;
+    // One transaction per piece (see batch-cuts.ts); a batch of unreadable messages only is one empty piece.
+    const pieces = cutAfterCloses(entries);
+    if (pieces.length === 0) pieces.push([]);
     try {
-      const result = stage.apply(entries);
-      const clockChanges: ClockChanges = this.clock?.observe(entries) ?? new Map();
-      const nextOffset = (BigInt(fresh.at(-1)!.offset) + 1n).toString();
-      const changelog = encodeChangelog(
-        this.clock ? [...result.changelog, ...this.clock.changelog(clockChanges)] : result.changelog,
-        { topic: this.deps.topics.changelog, partition: this.partition, generation: result.nextOffset, maxValueBytes: maxValueBytes(this.deps.maxMessageBytes) },
-        this.parts,
-      );
-      const messages: OutgoingMessage[] = [...result.outputs.map((o) => outputMessage(o, this.deps.topics)), ...unreadable, ...changelog.messages];
-      await runTransaction(
-        this.producer,
-        { messages, offsets: { groupId: this.deps.groupId, offsets: [{ ...this.tp, offset: nextOffset }] } },
-        { maxMessageBytes: this.deps.maxMessageBytes, crash: this.deps.crash, heartbeat: ctx.heartbeat },
-      );
-      this.deps.crash.pass('after-commit');
-      stage.commit();
-      applyPartCounts(this.parts, changelog.parts);
-      this.clock?.accept(clockChanges);
+      let from = next;
+      for (let k = 0; k < pieces.length; k++) {
+        if (k > 0 && (ctx.isStale() || !ctx.isRunning())) return;
+        const piece = pieces[k]!;
+        const result = stage.apply(piece);
+        const clockChanges: ClockChanges = this.clock?.observe(piece) ?? new Map();
+        const upTo = k === pieces.length - 1 ? end : BigInt(result.nextOffset);
+        const nextOffset = upTo.toString();
+        const changelog = encodeChangelog(
+          this.clock ? [...result.changelog, ...this.clock.changelog(clockChanges)] : result.changelog,
+          { topic: this.deps.topics.changelog, partition: this.partition, generation: result.nextOffset, maxValueBytes: maxValueBytes(this.deps.maxMessageBytes) },
+          this.parts,
+        );
+        const dead = unreadable.filter((u) => u.offset >= from && u.offset < upTo).map((u) => u.message);
+        const messages: OutgoingMessage[] = [...result.outputs.map((o) => outputMessage(o, this.deps.topics)), ...dead, ...changelog.messages];
+        await runTransaction(
+          this.producer,
+          { messages, offsets: { groupId: this.deps.groupId, offsets: [{ ...this.tp, offset: nextOffset }] } },
+          { maxMessageBytes: this.deps.maxMessageBytes, crash: this.deps.crash, heartbeat: ctx.heartbeat },
+        );
+        this.deps.crash.pass('after-commit');
+        stage.commit();
+        applyPartCounts(this.parts, changelog.parts);
+        this.clock?.accept(clockChanges);
+        from = upTo;
+        this.deps.onCommitted?.(this.partition, stage.nextOffset());
+      }
       ctx.resolve(last!.offset);
-      this.deps.onCommitted?.(this.partition, stage.nextOffset());
     } catch (err) {
       this.log.warn({ err, firstOffset: fresh[0]!.offset }, 'batch not committed; dropping the partition state and restoring');
       this.dropAndRestore(stage);
@@ -205,9 +218,10 @@ export class SensingPartition {
   }
 
   /** An event-log record we cannot read is dead-lettered in the same transaction instead of stopping the partition. */
-  private decode(messages: readonly IncomingMessage[]): { entries: LogEntry[]; unreadable: OutgoingMessage[] } {
+  /** Unreadable messages become dead letters, each sent in the transaction that covers its offset. */
+  private decode(messages: readonly IncomingMessage[]): { entries: LogEntry[]; unreadable: { offset: bigint; message: OutgoingMessage }[] } {
     const entries: LogEntry[] = [];
-    const unreadable: OutgoingMessage[] = [];
+    const unreadable: { offset: bigint; message: OutgoingMessage }[] = [];
     for (const m of messages) {
       try {
         entries.push({ offset: m.offset, record: decodeEventLogRecord(m.value ?? '') });
@@ -223,7 +237,7 @@ export class SensingPartition {
           arrivalMs: m.timestampMs,
           raw: m.value?.toString('utf8') ?? '',
         });
-        unreadable.push(deadLetterMessage(record, this.deps.topics, this.deps.eventSource));
+        unreadable.push({ offset: BigInt(m.offset), message: deadLetterMessage(record, this.deps.topics, this.deps.eventSource) });
       }
     }
     return { entries, unreadable };

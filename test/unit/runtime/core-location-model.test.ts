@@ -50,4 +50,50 @@ describe('the core engine behind the stage', () => {
     expect(expected.length).toBeGreaterThan(40);
     expect(got).toEqual(expected);
   });
+
+  it('leaves the weekly prune to the record after the close that completes a week, and restored between the two publishes the same', async () => {
+    const all = await records(writeSmallHistory({ days: 230 }).dir);
+    const entries = all.map((record, i) => ({ offset: String(i), record }));
+    const expected = stage()
+      .apply(entries)
+      .outputs.map((o) => JSON.stringify(o));
+    const running = stage();
+    const changelog: ChangelogEntry[] = [];
+    const got: string[] = [];
+    const fullSaveBytes = new Map<string, number>();
+    let due: { at: number; day: number } | undefined;
+    let prunesChecked = 0;
+    for (let i = 0; i < entries.length; i++) {
+      const r = running.apply([entries[i]!]);
+      running.commit();
+      changelog.push(...r.changelog);
+      got.push(...r.outputs.map((o) => JSON.stringify(o)));
+      const base = JSON.parse(r.changelog.find((e) => e.key === 'DC-NORTH')?.value ?? 'null') as { model: { pruneDue?: number } } | null;
+      const fullSaves = r.changelog.filter((e) => e.key.startsWith('DC-NORTH|f:'));
+      if (base?.model.pruneDue !== undefined) {
+        // The close that completed a week: its plans and manifest went out, no series was saved in full again.
+        expect(r.closes.length).toBe(1);
+        expect(fullSaves).toEqual([]);
+        due = { at: i, day: base.model.pruneDue };
+        continue;
+      }
+      if (due && base && entries[i]!.record.kind === 'order-line') {
+        // The next fact ran the prune first: once the oldest lines are past the retention window, every series
+        // is saved in full again, shorter than before.
+        if (fullSaves.length === 2 && fullSaves.every((e) => (e.value?.length ?? 0) < fullSaveBytes.get(e.key)!)) {
+          prunesChecked++;
+          if (prunesChecked === 1) {
+            const restored = stage();
+            restored.restore(changelog.slice(0, changelog.length - r.changelog.length));
+            const rest = restored.apply(entries.slice(i));
+            expect(rest.outputs.map((o) => JSON.stringify(o))).toEqual(expected.slice(got.length - r.outputs.length));
+          }
+        }
+        due = undefined;
+      }
+      for (const e of fullSaves) fullSaveBytes.set(e.key, e.value?.length ?? 0);
+    }
+    expect(prunesChecked).toBeGreaterThanOrEqual(3);
+    expect(got).toEqual(expected);
+  });
 });
