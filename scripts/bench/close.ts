@@ -64,6 +64,10 @@ const closeRecord = (date: string, atMs: number): EventLogRecord => ({
   record: { eventId: `close-${date}`, location: master.location as never, date },
 });
 const profiledDay = process.env.BENCH_PROFILE_DATE ?? day;
+const writeProfile = async () => {
+  const { profile } = await profiler!.post('Profiler.stop');
+  writeFileSync(`${process.env.BENCH_PROFILE}.${series}.cpuprofile`, JSON.stringify(profile));
+};
 const closes: { date: string; wallMs: number; cpuMs: number }[] = [];
 let result: ReturnType<typeof stage.apply> | undefined;
 let lastMs = lastFact.arrivalMs;
@@ -79,15 +83,9 @@ for (const date of businessDays) {
   const cpu = process.cpuUsage(cpu0);
   closes.push({ date, wallMs: wall, cpuMs: (cpu.user + cpu.system) / 1000 });
   if (date !== day) stage.commit();
-  if (profiler && date === profiledDay && date !== day) {
-    const { profile } = await profiler.post('Profiler.stop');
-    writeFileSync(`${process.env.BENCH_PROFILE}.${series}.cpuprofile`, JSON.stringify(profile));
-  }
+  if (profiler && date === profiledDay && date !== day) await writeProfile();
 }
-if (profiler && profiledDay === day) {
-  const { profile } = await profiler.post('Profiler.stop');
-  writeFileSync(`${process.env.BENCH_PROFILE}.${series}.cpuprofile`, JSON.stringify(profile));
-}
+if (profiler && profiledDay === day) await writeProfile();
 const fmt = (c: { date: string; wallMs: number; cpuMs: number }) => `${c.date} ${c.wallMs.toFixed(0)} ms (CPU ${c.cpuMs.toFixed(0)})`;
 console.log(`day closes, one per business day with that day's records applied before it: ${closes.map(fmt).join(', ')}`);
 const last = closes[closes.length - 1]!;

@@ -82,26 +82,27 @@ export class EmbeddedRuntime {
       for (;;) {
         const from = Number(stage.nextOffset());
         if (from >= this.store.logEnd(stage.partition)) break;
-        // Up to the first record that closes a day: its plans and manifest commit without what follows (batch-cuts.ts).
-        const batch = cutAfterCloses(this.store.readEvents(stage.partition, from, this.batchSize))[0]!;
-        const result = stage.apply(batch);
-        try {
-          this.store.transaction(() => {
-            this.store.writeOutputs(result.outputs);
-            this.fault('outputs-written');
-            this.store.writeChangelog(stage.partition, result.changelog);
-            this.fault('changelog-written');
-          });
-        } catch (error) {
-          // The SQLite transaction rolled back, so the state table holds the last committed state: rebuild from it.
-          stage.abort();
-          stage.restore(this.store.changelog(stage.partition));
-          throw error;
+        // One SQLite transaction per piece: a close's plans and manifest commit without what follows (batch-cuts.ts).
+        for (const batch of cutAfterCloses(this.store.readEvents(stage.partition, from, this.batchSize))) {
+          const result = stage.apply(batch);
+          try {
+            this.store.transaction(() => {
+              this.store.writeOutputs(result.outputs);
+              this.fault('outputs-written');
+              this.store.writeChangelog(stage.partition, result.changelog);
+              this.fault('changelog-written');
+            });
+          } catch (error) {
+            // The SQLite transaction rolled back, so the state table holds the last committed state: rebuild from it.
+            stage.abort();
+            stage.restore(this.store.changelog(stage.partition));
+            throw error;
+          }
+          this.fault('committed');
+          stage.commit();
+          closes.push(...result.closes);
+          this.onBatch?.(stage.partition, result);
         }
-        this.fault('committed');
-        stage.commit();
-        closes.push(...result.closes);
-        this.onBatch?.(stage.partition, result);
       }
     }
     return closes;

@@ -1,8 +1,8 @@
 import { randomUUID } from 'node:crypto';
 import type { Topics } from '../../config/topics.ts';
 import type { Logger } from '../../log.ts';
-import { deadLetter } from '../../runtime/dead-letter.ts';
 import { cutAfterCloses } from '../../runtime/batch-cuts.ts';
+import { deadLetter } from '../../runtime/dead-letter.ts';
 import { decodeEventLogRecord, encodeEventLogRecord, type LogEntry } from '../../runtime/event-log-record.ts';
 import type { SensingStage } from '../../runtime/sensing-stage-port.ts';
 import { applyPartCounts, BARRIER_KEY, decodeChangelog, encodeChangelog, type PartCounts } from './changelog-codec.ts';
@@ -217,8 +217,7 @@ export class SensingPartition {
     }
   }
 
-  /** An event-log record we cannot read is dead-lettered in the same transaction instead of stopping the partition. */
-  /** Unreadable messages become dead letters, each sent in the transaction that covers its offset. */
+  /** An event-log record we cannot read is dead-lettered in the transaction that covers its offset instead of stopping the partition. */
   private decode(messages: readonly IncomingMessage[]): { entries: LogEntry[]; unreadable: { offset: bigint; message: OutgoingMessage }[] } {
     const entries: LogEntry[] = [];
     const unreadable: { offset: bigint; message: OutgoingMessage }[] = [];
