@@ -15,6 +15,7 @@ import {
   pruneLocationState,
   restoreLocationState,
   senseLocation,
+  seriesColumns,
   sensingSettings,
   snapshotLocationState,
   type ApplyOutcome as SensingOutcome,
@@ -252,9 +253,8 @@ class CoreLocationModel implements LocationModel {
 
   snapshotParts(): { base: unknown; parts: ReadonlyMap<string, unknown> } {
     const parts = new Map<string, unknown>();
-    const sItems = this.dirtyS === null ? [...this.sensing.series.keys()] : [...this.dirtyS].filter((i) => this.sensing.series.has(i));
-    const chosen = new Map(sItems.map((i) => [i, this.sensing.series.get(i)!]));
-    for (const snap of snapshotLocationState({ ...this.sensing, series: chosen }).series) {
+    const sItems = this.dirtyS === null ? this.sensing.series.keys() : this.dirtyS;
+    for (const snap of seriesColumns(this.sensing, sItems)) {
       const save = seriesSave(snap, this.fullSaves.get(snap.item));
       if (save.kind === 'full') {
         parts.set(`${F}${snap.item}`, save.full);

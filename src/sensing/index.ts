@@ -5,7 +5,7 @@ export { applyOrderLine } from './apply-order-line.ts';
 export { applyShipment } from './apply-shipment.ts';
 export { applyBaselineVersion } from './apply-baseline.ts';
 export { applyLocationMaster, applyDayClosed } from './apply-master.ts';
-export { snapshotLocationState, restoreLocationState, cloneLocationState, STATE_SCHEMA, type LocationStateSnapshot } from './snapshot.ts';
+export { snapshotLocationState, seriesColumns, encodeSeries, type SeriesColumns, restoreLocationState, cloneLocationState, STATE_SCHEMA, type LocationStateSnapshot } from './snapshot.ts';
 export { encodeColumn, decodeColumn } from './column-codec.ts';
 export { pruneLocationState, type PruneResult } from './prune.ts';
 export type { ApplyOutcome } from './outcome.ts';

@@ -70,13 +70,22 @@ function order(n: number, cmp: (a: number, b: number) => number): number[] {
   return idx;
 }
 
+/** The table's columns in the given row order, as numbers (`map` rewrites a column's values on the way). */
 function columnsInOrder(table: Table<Record<string, 'f64' | 'i32'>>, names: readonly string[], idx: number[], map?: Record<string, (v: number) => number>) {
-  const out: Record<string, string> = {};
+  const out: Record<string, Float64Array> = {};
   for (const name of names) {
     const col = table.cols[name]!;
     const f = map?.[name];
-    out[name] = encodeColumn(idx.map((i) => (f ? f(col[i]!) : col[i]!)));
+    const values = new Float64Array(idx.length);
+    for (let k = 0; k < idx.length; k++) values[k] = f ? f(col[idx[k]!]!) : col[idx[k]!]!;
+    out[name] = values;
   }
+  return out;
+}
+
+function encodedColumns(cols: Record<string, Float64Array>): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [name, values] of Object.entries(cols)) out[name] = encodeColumn(values);
   return out;
 }
 
@@ -131,26 +140,62 @@ export function baselineList(saved: unknown): BaselineSnapshotV1[] | undefined {
   return at === weeks.length ? out : undefined;
 }
 
+/**
+ * A series as its snapshot holds it, before the text form: rows in snapshot order as numbers, the baseline versions
+ * as the state keeps them. The runtime saves a series in parts and needs the numbers, not their text (series-tail.ts).
+ */
+export interface SeriesColumns {
+  readonly item: string;
+  readonly lines: Readonly<Record<string, Float64Array>>;
+  readonly shipments: Readonly<Record<string, Float64Array>>;
+  readonly baselines: readonly BaselineVersionEntry[];
+  readonly prunedFirstRequested?: number;
+  readonly prunedFirstShipped?: number;
+}
+
+function sortedCustomers(state: LocationState): string[] {
+  return [...state.customers].sort();
+}
+
+/** The named series' columns (sorted by item; names the state does not hold are skipped), customers numbered as the snapshot numbers them. */
+export function seriesColumns(state: LocationState, items: Iterable<string>): SeriesColumns[] {
+  const sorted = sortedCustomers(state);
+  const rank = new Map(sorted.map((c, i) => [c, i]));
+  const remap = state.customers.map((c) => rank.get(c)!);
+  const customer = (v: number) => (v < 0 ? -1 : remap[v]!);
+  return [...new Set(items)]
+    .filter((item) => state.series.has(item))
+    .sort()
+    .map((item): SeriesColumns => {
+      const s = state.series.get(item)!;
+      const L = s.lines.cols;
+      const li = order(s.lines.length, (a, b) => L.knownMs[a]! - L.knownMs[b]! || L.lineHash[a]! - L.lineHash[b]! || L.revision[a]! - L.revision[b]!);
+      const S = s.shipments.cols;
+      const si = order(s.shipments.length, (a, b) => S.knownMs[a]! - S.knownMs[b]! || S.shipmentHash[a]! - S.shipmentHash[b]!);
+      return {
+        item,
+        lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
+        shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
+        baselines: s.baselines,
+        ...(Number.isFinite(s.prunedFirstRequested) ? { prunedFirstRequested: s.prunedFirstRequested } : {}),
+        ...(Number.isFinite(s.prunedFirstShipped) ? { prunedFirstShipped: s.prunedFirstShipped } : {}),
+      };
+    });
+}
+
+/** A series' snapshot entry (the text form of its columns). */
+export function encodeSeries(c: SeriesColumns): SeriesSnapshot {
+  return {
+    item: c.item,
+    lines: encodedColumns(c.lines),
+    shipments: encodedColumns(c.shipments),
+    baselines: baselineColumns(c.baselines),
+    ...(c.prunedFirstRequested !== undefined ? { prunedFirstRequested: c.prunedFirstRequested } : {}),
+    ...(c.prunedFirstShipped !== undefined ? { prunedFirstShipped: c.prunedFirstShipped } : {}),
+  };
+}
+
 export function snapshotLocationState(state: LocationState): LocationStateSnapshot {
-  const sortedCustomers = [...state.customers].sort();
-  const remap = new Map(state.customers.map((c, i) => [i, sortedCustomers.indexOf(c)]));
-  const customer = (v: number) => (v < 0 ? -1 : remap.get(v)!);
-  const items = [...state.series.keys()].sort();
-  const series = items.map((item): SeriesSnapshot => {
-    const s = state.series.get(item)!;
-    const L = s.lines.cols;
-    const li = order(s.lines.length, (a, b) => L.knownMs[a]! - L.knownMs[b]! || L.lineHash[a]! - L.lineHash[b]! || L.revision[a]! - L.revision[b]!);
-    const S = s.shipments.cols;
-    const si = order(s.shipments.length, (a, b) => S.knownMs[a]! - S.knownMs[b]! || S.shipmentHash[a]! - S.shipmentHash[b]!);
-    return {
-      item,
-      lines: columnsInOrder(s.lines as never, Object.keys(SAVED_LINE_COLUMNS), li, { customer }),
-      shipments: columnsInOrder(s.shipments as never, Object.keys(SHIPMENT_COLUMNS), si),
-      baselines: baselineColumns(s.baselines),
-      ...(Number.isFinite(s.prunedFirstRequested) ? { prunedFirstRequested: s.prunedFirstRequested } : {}),
-      ...(Number.isFinite(s.prunedFirstShipped) ? { prunedFirstShipped: s.prunedFirstShipped } : {}),
-    };
-  });
   return {
     schema: STATE_SCHEMA,
     location: state.location,
@@ -158,9 +203,9 @@ export function snapshotLocationState(state: LocationState): LocationStateSnapsh
     watermarkMs: state.watermarkMs,
     retentionWeeks: state.retentionWeeks,
     tooLateWeeks: state.tooLateWeeks,
-    customers: sortedCustomers,
+    customers: sortedCustomers(state),
     closedDays: [...state.closedDays].sort((a, b) => a - b),
-    series,
+    series: seriesColumns(state, state.series.keys()).map(encodeSeries),
   };
 }
 

@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import { NearcastError } from '../../errors.ts';
-import { decodeColumn, encodeColumn, type LocationStateSnapshot } from '../../sensing/index.ts';
+import { decodeColumn, encodeColumn, encodeSeries, type LocationStateSnapshot, type SeriesColumns } from '../../sensing/index.ts';
 
 export type SeriesSnapshot = LocationStateSnapshot['series'][number];
 
@@ -9,8 +9,8 @@ export type SeriesSnapshot = LocationStateSnapshot['series'][number];
 // always land after the rows already saved: the series is then saved as its last full save (`f:<item>`) plus the
 // rows after it (`s:<item>`, the tail), and a batch rewrites only the tail. Whenever the saved prefix no longer
 // holds (a prune, a row that sorts earlier, new baselines, customers renumbered) or the tail outgrows half the
-// full save, the series is saved in full again (a new `f:` and an empty tail). The snapshot's columns come in the
-// sensing state's compact text form; the tail is cut from the decoded values and written in that form too.
+// full save, the series is saved in full again (a new `f:` and an empty tail). The save works from the series'
+// columns as numbers: a tail save puts only the tail into the sensing state's compact text form.
 
 /** What a tail part holds: the rows after the full save's, per table and column (text form). */
 export interface SeriesTail {
@@ -20,11 +20,11 @@ export interface SeriesTail {
 }
 
 type Saved = Record<string, string | number[]>;
-type Plain = Record<string, number[]>;
+type Columns = Readonly<Record<string, Float64Array>>;
 
 /** A saved table's columns as numbers (text form or plain lists). */
-function plain(cols: Saved): Plain {
-  const out: Plain = {};
+function plain(cols: Saved): Record<string, number[]> {
+  const out: Record<string, number[]> = {};
   for (const [name, col] of Object.entries(cols)) {
     const values = typeof col === 'string' ? decodeColumn(col) : col;
     if (values === undefined) throw new NearcastError('NEARCAST_STATE_CORRUPT', [`saved column ${name} is damaged`]);
@@ -33,9 +33,10 @@ function plain(cols: Saved): Plain {
   return out;
 }
 
-function encoded(cols: Plain): Record<string, string> {
+/** The rows from `from` on, in text form. */
+function encodedFrom(cols: Columns, from: number): Record<string, string> {
   const out: Record<string, string> = {};
-  for (const [name, values] of Object.entries(cols)) out[name] = encodeColumn(values);
+  for (const [name, values] of Object.entries(cols)) out[name] = encodeColumn(values.subarray(from));
   return out;
 }
 
@@ -46,52 +47,51 @@ export interface FullSave {
   readonly digest: string;
 }
 
-function rows(cols: Plain): number {
+function rows(cols: Columns): number {
   const first = Object.values(cols)[0];
   return first ? first.length : 0;
 }
 
-function slice(cols: Plain, from: number, to?: number): Plain {
-  const out: Plain = {};
-  for (const [name, values] of Object.entries(cols)) out[name] = values.slice(from, to);
-  return out;
-}
-
-/** Over the numbers' bits rather than their JSON text (cheaper; a -0 that JSON would write as 0 only forces a full save). */
-function digestOf(snap: SeriesSnapshot, linesCols: Plain, shipmentCols: Plain, lines: number, shipments: number): string {
-  const hash = createHash('sha256').update(JSON.stringify([snap.item, snap.baselines, snap.prunedFirstRequested ?? null, snap.prunedFirstShipped ?? null]));
-  const add = (table: string, cols: Plain, n: number) => {
+/**
+ * Over the numbers' bits rather than their text (cheaper). Digests are compared only within one process, with the
+ * full save the same process made, so their form can change between versions.
+ */
+function digestOf(c: SeriesColumns, lines: number, shipments: number): string {
+  const hash = createHash('sha256').update(JSON.stringify([c.item, c.prunedFirstRequested ?? null, c.prunedFirstShipped ?? null, c.baselines.length]));
+  const bytes = (a: Float64Array | Int32Array) => new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+  for (const b of c.baselines) {
+    hash.update(bytes(Float64Array.of(b.version, b.eventHash, b.publishedMs, b.knownMs, b.knownDay, b.weeks.length)));
+    hash.update(bytes(b.weeks));
+    hash.update(bytes(b.quantities));
+  }
+  const add = (table: string, cols: Columns, n: number) => {
     for (const [name, values] of Object.entries(cols)) {
       hash.update(`\u0000${table}.${name}:${n}:`);
-      const bits = new Float64Array(n);
-      for (let i = 0; i < n; i++) bits[i] = values[i]!;
-      hash.update(new Uint8Array(bits.buffer));
+      hash.update(bytes(values.subarray(0, n)));
     }
   };
-  add('lines', linesCols, lines);
-  add('shipments', shipmentCols, shipments);
+  add('lines', c.lines, lines);
+  add('shipments', c.shipments, shipments);
   return hash.digest('hex');
 }
 
 export type SeriesSave = { readonly kind: 'full'; readonly full: SeriesSnapshot; readonly tail: SeriesTail; readonly save: FullSave } | { readonly kind: 'tail'; readonly tail: SeriesTail };
 
 /** How to save a series now, given its last full save (undefined: none known, e.g. after a restore). */
-export function seriesSave(snap: SeriesSnapshot, last: FullSave | undefined): SeriesSave {
-  const lines = plain(snap.lines);
-  const shipments = plain(snap.shipments);
-  const nLines = rows(lines);
-  const nShipments = rows(shipments);
+export function seriesSave(c: SeriesColumns, last: FullSave | undefined): SeriesSave {
+  const nLines = rows(c.lines);
+  const nShipments = rows(c.shipments);
   if (last && last.lines <= nLines && last.shipments <= nShipments) {
     const added = nLines - last.lines + (nShipments - last.shipments);
-    if (added * 2 <= Math.max(32, last.lines + last.shipments) && digestOf(snap, lines, shipments, last.lines, last.shipments) === last.digest) {
-      return { kind: 'tail', tail: { tail: 1, lines: encoded(slice(lines, last.lines)), shipments: encoded(slice(shipments, last.shipments)) } };
+    if (added * 2 <= Math.max(32, last.lines + last.shipments) && digestOf(c, last.lines, last.shipments) === last.digest) {
+      return { kind: 'tail', tail: { tail: 1, lines: encodedFrom(c.lines, last.lines), shipments: encodedFrom(c.shipments, last.shipments) } };
     }
   }
   return {
     kind: 'full',
-    full: snap,
-    tail: { tail: 1, lines: encoded(slice(lines, nLines)), shipments: encoded(slice(shipments, nShipments)) },
-    save: { lines: nLines, shipments: nShipments, digest: digestOf(snap, lines, shipments, nLines, nShipments) },
+    full: encodeSeries(c),
+    tail: { tail: 1, lines: encodedFrom(c.lines, nLines), shipments: encodedFrom(c.shipments, nShipments) },
+    save: { lines: nLines, shipments: nShipments, digest: digestOf(c, nLines, nShipments) },
   };
 }
 

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { RecordValidator } from '../../../../src/contracts/validate.ts';
 import { createCoreModels } from '../../../../src/runtime/core-location-model.ts';
 import { joinTail, seriesSave, type SeriesSnapshot } from '../../../../src/runtime/core/series-tail.ts';
-import { decodeColumn } from '../../../../src/sensing/index.ts';
+import { decodeColumn, encodeSeries, type SeriesColumns } from '../../../../src/sensing/index.ts';
 import type { EventLogRecord } from '../../../../src/runtime/event-log-record.ts';
 import { historyStream } from '../../../../src/runtime/history/history-stream.ts';
 import { createSensingStage } from '../../../../src/runtime/sensing-stage.ts';
@@ -10,13 +10,18 @@ import { DEFAULT_STAGE_SETTINGS } from '../../../../src/runtime/stage-settings.t
 import type { ChangelogEntry } from '../../../../src/runtime/stage-output.ts';
 import { writeSmallHistory } from '../fixtures/history-dir.ts';
 
-const snap = (knownMs: number[], shipped: number[] = []): SeriesSnapshot =>
-  ({
-    item: 'COLA-1L',
-    lines: { knownMs, quantity: knownMs.map((k) => k % 7) },
-    shipments: { knownMs: shipped },
-    baselines: [{ version: 1, eventHash: 5, publishedMs: 1, knownMs: 1, knownDay: 0, weeks: [20_000], quantities: [70] }],
-  }) as unknown as SeriesSnapshot;
+const baseline = { version: 1, eventHash: 5, publishedMs: 1, knownMs: 1, knownDay: 0, weeks: Int32Array.of(20_000), quantities: Float64Array.of(70) };
+const snap = (knownMs: number[], shipped: number[] = []): SeriesColumns => ({
+  item: 'COLA-1L',
+  lines: { knownMs: Float64Array.from(knownMs), quantity: Float64Array.from(knownMs.map((k) => k % 7)) },
+  shipments: { knownMs: Float64Array.from(shipped) },
+  baselines: [baseline],
+});
+/** A snapshot entry with every column as a plain list, whichever form it was saved in. */
+const asLists = (e: SeriesSnapshot) => {
+  const lists = (cols: Record<string, string | number[]>) => Object.fromEntries(Object.entries(cols).map(([k, v]) => [k, typeof v === 'string' ? decodeColumn(v) : v]));
+  return { ...e, lines: lists(e.lines), shipments: lists(e.shipments) };
+};
 
 describe('series saved as a full save plus the rows after it', () => {
   it('saves only the appended rows while the saved rows stay a prefix, and joins back to the whole', () => {
@@ -31,7 +36,8 @@ describe('series saved as a full save plus the rows after it', () => {
     const decoded = (cols: Record<string, string>) => Object.fromEntries(Object.entries(cols).map(([k, v]) => [k, decodeColumn(v)]));
     expect(decoded(next.tail.lines)).toEqual({ knownMs: [40, 50], quantity: [5, 1] });
     expect(decoded(next.tail.shipments)).toEqual({ knownMs: [60] });
-    expect(JSON.stringify(joinTail(first.full, next.tail))).toBe(JSON.stringify(now));
+    expect(asLists(joinTail(first.full, next.tail))).toEqual(asLists(encodeSeries(now)));
+    expect(asLists(joinTail(first.full, next.tail)).lines).toEqual({ knownMs: [10, 20, 30, 40, 50], quantity: [3, 6, 2, 5, 1] });
   });
 
   it('refuses a damaged tail column with the state-corrupt error rather than restoring fewer rows', () => {
@@ -42,13 +48,19 @@ describe('series saved as a full save plus the rows after it', () => {
     );
   });
 
-  it('saves in full again when a saved row changed, a row sorts earlier, or a baseline arrived', () => {
+  it('saves in full again when a saved row changed, a row sorts earlier, or a baseline arrived or changed', () => {
     const first = seriesSave(snap([10, 20, 30]), undefined);
     if (first.kind !== 'full') throw new Error('expected a full save');
     expect(seriesSave(snap([10, 15, 20, 30]), first.save).kind).toBe('full');
     expect(seriesSave(snap([20, 30]), first.save).kind).toBe('full');
-    const rebased = { ...snap([10, 20, 30, 40]), baselines: [] } as unknown as SeriesSnapshot;
+    const rebased = { ...snap([10, 20, 30, 40]), baselines: [] };
     expect(seriesSave(rebased, first.save).kind).toBe('full');
+    const revised = { ...snap([10, 20, 30, 40]), baselines: [{ ...baseline, quantities: Float64Array.of(71) }] };
+    expect(seriesSave(revised, first.save).kind).toBe('full');
+    const changed = snap([10, 20, 30, 40]);
+    changed.lines.quantity![1] = 99;
+    expect(seriesSave(changed, first.save).kind).toBe('full');
+    expect(seriesSave(snap([10, 20, 30, 40]), first.save).kind).toBe('tail');
   });
 
   it('saves in full again once the rows after it outgrow half the full save (at least 16 rows)', () => {
