@@ -205,7 +205,8 @@ class CoreLocationModel implements LocationModel {
       monitoredLead: this.settings.monitoring.replan.lead,
       late: new Map(Object.entries(this.s.late)),
     });
-    const result = monitorDay(this.s.monitor, input, this.settings.monitoring);
+    // The stage drops the whole state when a batch fails (sensing-stage.ts), so nothing reads the old one again.
+    const result = monitorDay(this.s.monitor, input, this.settings.monitoring, { handOver: true });
     this.s.monitor = result.state;
     notePlans(this.s.ledger, day.plans, new Map((day.monitoringInputs ?? []).map((m) => [m.item, m.meanPerDay])));
     this.s.lastClosed = facts.planDate;

@@ -25,6 +25,27 @@ describe('monitorDay', () => {
     expect(again.state).toEqual(first.state);
   });
 
+  it('gives the same result when the caller hands its state over, and leaves a state it keeps untouched', () => {
+    const days = DATES.slice(0, 12).map((d, i) => dayInput(d, [...quiet(6), { item: 'SPARK-LEMON-330', intake: i === 3 ? 160 : i >= 8 ? 12 : 40, expected: 40 }]));
+    let copied = monitorDay(null, days[0]!).state;
+    let handed = monitorDay(null, days[0]!).state;
+    let alerts = 0;
+    for (const day of days.slice(1)) {
+      const before = JSON.stringify(copied);
+      const a = monitorDay(copied, day);
+      expect(JSON.stringify(copied)).toBe(before);
+      const b = monitorDay(handed, day, undefined, { handOver: true });
+      expect(b.state).toBe(handed);
+      expect(JSON.stringify(b.alerts)).toBe(JSON.stringify(a.alerts));
+      expect(JSON.stringify(b.state)).toBe(JSON.stringify(a.state));
+      alerts += a.alerts.length;
+      copied = a.state;
+      handed = b.state;
+    }
+    // The run opens and changes alerts, so the states compared carry alert life cycles, not just counters.
+    expect(alerts).toBeGreaterThan(1);
+  });
+
   it('treats a day before the last one applied as stale', () => {
     const s = monitorDay(null, dayInput(DATES[1]!, quiet(3))).state;
     expect(monitorDay(s, dayInput(DATES[0]!, quiet(3))).outcome).toBe('stale');
