@@ -51,6 +51,22 @@ describe('the snapshot column form', () => {
     expect(decodeColumn('d/w')).toBeUndefined(); // a varint whose last byte says "more follows"
     expect(decodeColumn('fAAAA')).toBeUndefined(); // not a whole float64
     expect(decodeColumn('d*AA')).toBeUndefined();
+    // Characters outside the standard alphabet (URL-safe ones, padding, white space) are damage, not skipped.
+    expect(decodeColumn('dAg-C')).toBeUndefined();
+    expect(decodeColumn('dAg_C')).toBeUndefined();
+    expect(decodeColumn('dAgIC=')).toBeUndefined();
+    expect(decodeColumn('dAg IC')).toBeUndefined();
+    expect(decodeTypedColumn('fAAAAAAAA4D_', 'f64')).toBeUndefined();
+    // "Aw" is the byte 03 (zigzag 3 → −2) with four zero bits left over; "Ax" leaves a stray bit the encoder never writes.
+    expect(decodeColumn('dAw')).toEqual([-2]);
+    expect(decodeColumn('dAx')).toBeUndefined();
+  });
+
+  it('decodes what a standard base64 codec encodes (RFC 4648, padding dropped)', () => {
+    // Bytes 02 02 02 are deltas 1, 1, 1 (see above); 00×6 E0 3F is 0.5 as little-endian float64.
+    const b64 = (bytes: number[]) => Buffer.from(bytes).toString('base64').replace(/=+$/, '');
+    expect(decodeColumn(`d${b64([2, 2, 2])}`)).toEqual([1, 2, 3]);
+    expect(Array.from(decodeTypedColumn(`f${b64([0, 0, 0, 0, 0, 0, 0xe0, 0x3f, 0, 0, 0, 0, 0, 0, 0xf0, 0xbf])}`, 'f64')!)).toEqual([0.5, -1]);
   });
 
   it('decodes straight into a typed array the values the plain decoding gives', () => {
