@@ -109,6 +109,9 @@ class PartsWalk {
   private readonly seriesSizes: number[] = [];
   private readonly seenCustomers = new Set<number>();
   firstActivity: number | null = null;
+  /** Shipment rows in knowledge order (see shipmentOrder), and how many rows of the table they cover. */
+  private shipOrder = new Int32Array(0);
+  private shipRows = 0;
   readonly known: KnownVersion;
   readonly baselinesSeen: Set<BaselineVersionEntry>;
 
@@ -161,6 +164,39 @@ class PartsWalk {
     this.walk(idx);
     this.rowsDone = n;
     return true;
+  }
+
+  /**
+   * The shipment table's rows in knowledge order (ties by shipment hash). Shipments are only ever appended, so the
+   * rows added since the last call are sorted on their own and put behind the others when they all sort after
+   * them (a day's shipments); otherwise every row is sorted again. The view is valid until the next call.
+   */
+  shipmentOrder(): Int32Array {
+    const S = this.series.shipments.cols;
+    const n = this.series.shipments.length;
+    const before = (a: number, b: number) => {
+      const ka = S.knownMs[a]!;
+      const kb = S.knownMs[b]!;
+      if (ka !== kb) return ka < kb ? -1 : 1;
+      const ha = S.shipmentHash[a]!;
+      const hb = S.shipmentHash[b]!;
+      return ha < hb ? -1 : ha > hb ? 1 : 0;
+    };
+    if (n === this.shipRows) return this.shipOrder.subarray(0, n);
+    const added: number[] = [];
+    for (let i = this.shipRows; i < n; i++) added.push(i);
+    added.sort(before);
+    const done = this.shipRows;
+    const order = grow(this.shipOrder, n);
+    if (done > 0 && before(order[done - 1]!, added[0]!) > 0) {
+      const all = Array.from({ length: n }, (_, i) => i).sort(before);
+      order.set(all);
+    } else {
+      order.set(added, done);
+    }
+    this.shipOrder = order;
+    this.shipRows = n;
+    return order.subarray(0, n);
   }
 
   private reserve(extra: number): void {
@@ -295,15 +331,7 @@ function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
   const m = walk.n;
   const S = series.shipments.cols;
   const sn = series.shipments.length;
-  const sIdx = Array.from({ length: sn }, (_, i) => i);
-  sIdx.sort((a, b) => {
-    const ka = S.knownMs[a]!;
-    const kb = S.knownMs[b]!;
-    if (ka !== kb) return ka < kb ? -1 : 1;
-    const ha = S.shipmentHash[a]!;
-    const hb = S.shipmentHash[b]!;
-    return ha < hb ? -1 : ha > hb ? 1 : 0;
-  });
+  const sIdx = walk.shipmentOrder();
   const sh = {
     n: sn,
     knownMs: new Float64Array(sn),
@@ -312,7 +340,8 @@ function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
     quantity: new Float64Array(sn),
     lagDays: new Int32Array(sn),
   };
-  sIdx.forEach((r, k) => {
+  for (let k = 0; k < sn; k++) {
+    const r = sIdx[k]!;
     sh.knownMs[k] = S.knownMs[r]!;
     sh.knownDay[k] = S.knownDay[r]!;
     sh.shipDay[k] = S.shipDay[r]!;
@@ -321,7 +350,7 @@ function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
     const req = lineRow === undefined ? undefined : L.requestedDay[lineRow]!;
     sh.lagDays[k] = req === undefined ? LAG_UNKNOWN : S.shipDay[r]! - req;
     if (firstActivity === null || S.shipDay[r]! < firstActivity) firstActivity = S.shipDay[r]!;
-  });
+  }
 
   return {
     n: m,

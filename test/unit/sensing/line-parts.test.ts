@@ -3,11 +3,12 @@ import { describe, expect, it } from 'vitest';
 import { dayNumber } from '../../../src/calendar/day-number.ts';
 import { applyBaselineVersion } from '../../../src/sensing/apply-baseline.ts';
 import { applyOrderLine } from '../../../src/sensing/apply-order-line.ts';
+import { applyShipment } from '../../../src/sensing/apply-shipment.ts';
 import { buildParts, PART_FIRST_FILL, PART_LARGE, seriesParts, type SeriesParts } from '../../../src/sensing/line-parts.ts';
 import { createLocationState } from '../../../src/sensing/location-state.ts';
 import { pruneLocationState } from '../../../src/sensing/prune.ts';
 import { DEFAULT_SENSING_SETTINGS } from '../../../src/sensing/settings.ts';
-import { baseline, line, MASTER } from './helpers/records.ts';
+import { baseline, line, MASTER, shipment } from './helpers/records.ts';
 
 const S = DEFAULT_SENSING_SETTINGS;
 const ITEM = 'SPARK-LEMON-330';
@@ -21,13 +22,15 @@ function plain(p: SeriesParts) {
     n: p.n,
     firstActivityDay: p.firstActivityDay,
     ...Object.fromEntries(cols.map((c) => [c, Array.from(p[c])])),
+    shipments: Object.fromEntries((['knownMs', 'knownDay', 'shipDay', 'quantity', 'lagDays'] as const).map((c) => [c, Array.from(p.shipments[c])])),
   };
 }
 
 /** One input event: an order-line revision or a baseline version, with its knowledge instant in hours from T0. */
 type Event =
   | { kind: 'line'; order: number; revision: number; hour: number; quantity: number; customer: number; requestedWeek: number; cancel: boolean }
-  | { kind: 'baseline'; hour: number; level: number };
+  | { kind: 'baseline'; hour: number; level: number }
+  | { kind: 'shipment'; id: number; order: number; hour: number; quantity: number };
 
 const lineEvent = fc.record({
   kind: fc.constant('line' as const),
@@ -40,10 +43,22 @@ const lineEvent = fc.record({
   requestedWeek: fc.integer({ min: 0, max: 7 }),
   cancel: fc.boolean(),
 });
+// Shipments of the orders' lines (so their lag reads the line's current requested date), some ids repeated.
+const shipmentEvent = fc.record({
+  kind: fc.constant('shipment' as const),
+  id: fc.integer({ min: 0, max: 30 }),
+  order: fc.integer({ min: 0, max: 6 }),
+  hour: fc.integer({ min: 0, max: 24 * 40 }),
+  quantity: fc.integer({ min: 1, max: 12 }),
+});
 const baselineEvent = fc.record({ kind: fc.constant('baseline' as const), hour: fc.integer({ min: 0, max: 24 * 40 }), level: fc.integer({ min: 50, max: 300 }) });
 
 function apply(state: ReturnType<typeof createLocationState>, e: Event, k: number): void {
   const at = new Date(T0 + e.hour * 3_600_000).toISOString();
+  if (e.kind === 'shipment') {
+    applyShipment(state, shipment({ shipmentId: `SH-${e.id}`, orderId: `O-${e.order}`, lineId: '1', quantity: e.quantity, shippedAt: at }));
+    return;
+  }
   if (e.kind === 'baseline') {
     applyBaselineVersion(state, baseline({ version: k + 1, publishedAt: at, weeks: MONDAYS.map((weekStart) => ({ weekStart, quantity: e.level })) }));
     return;
@@ -66,10 +81,10 @@ function apply(state: ReturnType<typeof createLocationState>, e: Event, k: numbe
 }
 
 describe('line parts kept by appending', () => {
-  it('equal a walk from scratch after every record, whatever the arrival order, across a prune', () => {
+  it('equal a walk from scratch after every record, shipments included, whatever the arrival order, across a prune', () => {
     fc.assert(
       fc.property(
-        fc.array(fc.oneof({ weight: 8, arbitrary: lineEvent }, { weight: 1, arbitrary: baselineEvent }), { minLength: 1, maxLength: 60 }),
+        fc.array(fc.oneof({ weight: 8, arbitrary: lineEvent }, { weight: 1, arbitrary: baselineEvent }, { weight: 3, arbitrary: shipmentEvent }), { minLength: 1, maxLength: 60 }),
         // Share of the events delivered in knowledge order (the rest arrive late, out of order).
         fc.double({ min: 0, max: 1, noNaN: true }),
         fc.integer({ min: 0, max: 59 }),
