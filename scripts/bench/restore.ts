@@ -5,8 +5,11 @@
 // apply, as the partition's own log line reports them. The restored state is checked against the original by the
 // plans both compute for the same day: a seeded sample compared record by record and a digest of all of them.
 //
-//   node --import tsx scripts/bench/restore.ts   (BENCH_SERIES=5000 BENCH_SEED_SERIES=200 BENCH_SEED=1)
+//   node --import tsx scripts/bench/restore.ts   (BENCH_SERIES=5000 BENCH_SEED_SERIES=200 BENCH_SEED=1 BENCH_COPIES=1)
 // The default size keeps a run to a few minutes on two cores (building a 13-week history is most of it).
+// BENCH_COPIES=k builds BENCH_SERIES/k series and writes each one's changelog entries k times under k item names:
+// the generated history of 100k series does not fit in memory, its state does. The restored state is then checked
+// against a restore of the same entries in memory (snapshot digests) instead of against the built model's plans.
 // BENCH_SEED_SERIES is how many series are compared one by one (picked with BENCH_SEED). Uses KAFKA_BROKERS when
 // set, else starts a throw-away local broker (scripts/kafka-local). Exits 1 when the restored plans differ.
 import { createHash } from 'node:crypto';
@@ -16,6 +19,7 @@ import type { LocationModel, LocationModelFactory, SenseAsOf } from '../../src/r
 import { createSensingStage } from '../../src/runtime/sensing-stage.ts';
 import { createRng, sampleInteger } from '../../src/stats/random.ts';
 import { encodeChangelog } from '../../src/transport/kafka/changelog-codec.ts';
+import type { ChangelogEntry } from '../../src/runtime/stage-output.ts';
 import type { OutgoingMessage } from '../../src/transport/kafka/kafka-port.ts';
 import { maxValueBytes } from '../../src/transport/kafka/message-chunks.ts';
 import { NO_CRASH_POINTS } from '../../src/transport/kafka/crash-points.ts';
@@ -27,6 +31,7 @@ import { benchChangelog, buildBenchLocation, type BenchLocation } from './bench-
 const SERIES = Number(process.env.BENCH_SERIES ?? 5_000);
 const SAMPLE = Number(process.env.BENCH_SEED_SERIES ?? 200);
 const SEED = Number(process.env.BENCH_SEED ?? 1);
+const COPIES = Math.max(1, Math.floor(Number(process.env.BENCH_COPIES ?? 1)));
 const TARGET_SERIES = 100_000;
 const TARGET_MS = 60_000;
 /** Changelog records per transaction while writing the state (a running stage writes one per batch). */
@@ -61,15 +66,17 @@ async function main(): Promise<number> {
   try {
     console.log(`nearcast restore benchmark: ${SERIES} series in one location, changelog over Kafka (2-core machine shared with other work: figures are noisy)`);
     const models = createCoreModels({ demandBasis: 'orders' });
-    let built: BenchLocation | undefined = await buildBenchLocation(SERIES, models);
+    let built: BenchLocation | undefined = await buildBenchLocation(Math.ceil(SERIES / COPIES), models);
     console.log(`state: ${built.facts} records applied in ${Math.round(built.applyMs)} ms (history generated in ${Math.round(built.generateMs)} ms; not timed)`);
     const asOf: SenseAsOf = { planDate: built.day, knowledgeMs: built.lastFact.arrivalMs + 1 };
-    const original = plansOf(built.model, asOf);
+    const original = COPIES === 1 ? plansOf(built.model, asOf) : undefined;
+    const entries = copiesOf(benchChangelog(built), built.master.location, COPIES);
+    if (COPIES > 1) console.log(`changelog entries of ${Math.ceil(SERIES / COPIES)} built series written ${COPIES} times under other item names`);
 
     // The original model is dropped once its changelog exists: a restore starts from nothing but the topic.
     const t0 = performance.now();
     let messages: OutgoingMessage[] | undefined = encodeChangelog(
-      benchChangelog(built),
+      entries,
       { topic: config.topics.changelog, partition: 0, generation: 'bench-build', maxValueBytes: maxValueBytes(config.kafka.maxMessageBytes) },
       new Map(),
     ).messages;
@@ -123,10 +130,51 @@ async function main(): Promise<number> {
     );
 
     if (restored.length !== 1) throw new Error(`expected one restored location, got ${restored.length}`);
-    return compare(original, plansOf(restored[0]!, asOf));
+    if (original) return compare(original, plansOf(restored[0]!, asOf));
+    const overKafka = snapshotDigest(restored.pop()!);
+    const inMemory = createSensingStage({ partition: 0, models: capturing, settings: { demandBasis: 'orders' } });
+    inMemory.restore(entries);
+    const reference = snapshotDigest(restored.pop()!);
+    const same = overKafka.digest === reference.digest && overKafka.series === SERIES;
+    console.log(
+      `restored over Kafka vs restored in memory from the same entries: ${overKafka.series} and ${reference.series} series, snapshots ${same ? 'identical' : 'DIFFER'} (sha-256 ${overKafka.digest.slice(0, 12)} vs ${reference.digest.slice(0, 12)})`,
+    );
+    return same ? 0 : 1;
   } finally {
     await kafka.close();
   }
+}
+
+/** The entries with every per-series part written `copies` times, copy k > 0 under the item name `<item>.c<k>`. */
+function copiesOf(entries: ChangelogEntry[], location: string, copies: number): ChangelogEntry[] {
+  if (copies === 1) return entries;
+  const out: ChangelogEntry[] = [];
+  const prefix = `${location}|`;
+  for (const e of entries) {
+    out.push(e);
+    if (!e.key.startsWith(prefix)) continue;
+    const part = e.key.slice(prefix.length);
+    const colon = part.indexOf(':');
+    const item = part.slice(colon + 1);
+    for (let k = 1; k < copies; k++) {
+      const name = `${item}.c${k}`;
+      // Item names appear in a part's value only as JSON strings (the series' own name).
+      out.push({ key: `${prefix}${part.slice(0, colon + 1)}${name}`, value: e.value === null ? null : e.value.replaceAll(JSON.stringify(item), JSON.stringify(name)) });
+    }
+  }
+  return out;
+}
+
+/** A digest of a model's whole snapshot, series by series (the snapshot of 100k series is too long for one string). */
+function snapshotDigest(model: LocationModel): { digest: string; series: number } {
+  const snap = model.snapshot() as { sensing: { series: unknown[] } & Record<string, unknown> } & Record<string, unknown>;
+  const hash = createHash('sha256');
+  const { series, ...sensingRest } = snap.sensing;
+  const { sensing: _sensing, ...rest } = snap;
+  hash.update(JSON.stringify(rest));
+  hash.update(JSON.stringify(sensingRest));
+  for (const s of series) hash.update(JSON.stringify(s));
+  return { digest: hash.digest('hex'), series: series.length };
 }
 
 interface PlanSet {
