@@ -7,7 +7,11 @@ import { newRuntimeState, type LocationRuntimeState } from './location-runtime-s
 import { deadLetterOutput } from './output-records.ts';
 import type { SensingStage } from './sensing-stage-port.ts';
 import { DEFAULT_STAGE_SETTINGS, type StageSettings } from './stage-settings.ts';
+import { ParsedParts } from './parsed-parts.ts';
 import { PARTITION_STATE_KEY, type BatchResult, type ChangelogEntry, type OutputRecord } from './stage-output.ts';
+
+/** The state-corrupt error of a changelog entry that is not JSON, which names the entry itself. */
+class NotJson extends NearcastError {}
 
 interface LocationSlot {
   runtime: LocationRuntimeState;
@@ -111,14 +115,15 @@ class PartitionSensingStage implements SensingStage {
     this.committedOffset = 0n;
     this.open = false;
     this.dropped = false;
-    const parts = new Map<string, Map<string, unknown>>();
+    // Kept as text and parsed part by part while each location is rebuilt (see parsed-parts.ts).
+    const parts = new Map<string, Map<string, string>>();
     for (const [key, value] of latest) {
       const bar = key.indexOf('|');
       if (bar < 0 || value === null) continue;
       const location = key.slice(0, bar);
       let map = parts.get(location);
       if (!map) parts.set(location, (map = new Map()));
-      map.set(key.slice(bar + 1), this.parse(value, key));
+      map.set(key.slice(bar + 1), value);
     }
     for (const [key, value] of latest) {
       if (value === null || key.includes('|')) continue;
@@ -126,7 +131,7 @@ class PartitionSensingStage implements SensingStage {
         this.committedOffset = BigInt((JSON.parse(value) as PartitionState).nextOffset);
         continue;
       }
-      this.slots.set(key, this.slotFrom(key, value, parts.get(key) ?? new Map()));
+      this.slots.set(key, this.slotFrom(key, value, new ParsedParts(parts.get(key) ?? new Map(), (text, part) => this.parse(text, `${key}|${part}`))));
     }
     this.workingOffset = this.committedOffset;
   }
@@ -135,7 +140,7 @@ class PartitionSensingStage implements SensingStage {
     try {
       return JSON.parse(text);
     } catch (error) {
-      throw new NearcastError('NEARCAST_STATE_CORRUPT', [`partition ${this.partition}: changelog entry ${key} is not JSON`], { cause: error });
+      throw new NotJson('NEARCAST_STATE_CORRUPT', [`partition ${this.partition}: changelog entry ${key} is not JSON`], { cause: error });
     }
   }
 
@@ -148,6 +153,8 @@ class PartitionSensingStage implements SensingStage {
       }
       return { runtime: snap.runtime, model: this.models.restore(snap.model) };
     } catch (error) {
+      // A part that is not JSON names its own entry (see parse).
+      if (error instanceof NotJson) throw error;
       throw new NearcastError('NEARCAST_STATE_CORRUPT', [`partition ${this.partition}: the snapshot of ${location} could not be read`], { cause: error });
     }
   }

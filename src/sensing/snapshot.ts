@@ -291,7 +291,11 @@ export function restoreLocationState(snapshot: unknown): LocationState {
     corrupt(`not a ${STATE_SCHEMA} snapshot`);
   }
   if (typeof snap.location !== 'string' || snap.master?.location !== snap.location) corrupt('location and master data disagree');
-  if (!Array.isArray(snap.customers) || !Array.isArray(snap.series) || !Array.isArray(snap.closedDays)) corrupt('lists are missing');
+  // The series may also come as an iterable read once (a runtime assembling them part by part, so that a large
+  // restore never holds every series' saved form at once).
+  const series: unknown = snap.series;
+  const iterable = Array.isArray(series) || (typeof series === 'object' && series !== null && Symbol.iterator in series);
+  if (!Array.isArray(snap.customers) || !iterable || !Array.isArray(snap.closedDays)) corrupt('lists are missing');
   let calendar;
   try {
     calendar = createLocationCalendar(snap.master);
@@ -310,7 +314,7 @@ export function restoreLocationState(snapshot: unknown): LocationState {
     customerIndex: new Map(snap.customers.map((c, i) => [c, i])),
     closedDays: new Set(snap.closedDays),
   };
-  for (const s of snap.series) state.series.set(s.item, restoreSeries(s, snap.customers.length));
+  for (const s of series as Iterable<SeriesSnapshot>) state.series.set(s.item, restoreSeries(s, snap.customers.length));
   return state;
 }
 

@@ -32,22 +32,35 @@ export interface PartedBase {
 
 export type ClosePart = { m: MonitorState['series'][string] | null; p: [string, number][] | null; l: WeekLedger['series'][string] | null };
 
-/** Puts the saved parts back together into whole snapshots (still to be restored by sensing and monitoring). */
+const byName = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
+
+/**
+ * Puts the saved parts back together into whole snapshots (still to be restored by sensing and monitoring). The
+ * series come as an iterable read once, in item order, each part read from `parts` only when its series is due, so
+ * a restore need not hold every series' parsed parts at once (see parsed-parts.ts).
+ */
 export function assembleParts(base: PartedBase, parts: ReadonlyMap<string, unknown>) {
-  const series: { item: string }[] = [];
-  for (const [k, v] of parts) {
-    if (!k.startsWith(S) || v === null) continue;
-    // A part written before full saves existed holds the whole series.
-    if (!isSeriesTail(v)) {
-      series.push(v as { item: string });
-      continue;
+  const keys = [...parts.keys()];
+  const seriesItems = keys.filter((k) => k.startsWith(S)).map((k) => k.slice(S.length)).sort(byName);
+  function* series(): Generator<{ item: string }> {
+    for (const item of seriesItems) {
+      const v = parts.get(`${S}${item}`);
+      if (v === null || v === undefined) continue;
+      // A part written before full saves existed holds the whole series.
+      if (!isSeriesTail(v)) {
+        yield v as { item: string };
+        continue;
+      }
+      const full = parts.get(`${F}${item}`);
+      if (full === undefined || full === null) throw new Error(`series part ${S}${item} has rows after a full save that is missing`);
+      yield joinTail(full as SeriesSnapshot, v);
     }
-    const full = parts.get(`${F}${k.slice(S.length)}`);
-    if (full === undefined || full === null) throw new Error(`series part ${k} has rows after a full save that is missing`);
-    series.push(joinTail(full as SeriesSnapshot, v));
   }
-  series.sort((a, b) => (a.item < b.item ? -1 : a.item > b.item ? 1 : 0));
-  const close = new Map([...parts].filter(([k, v]) => k.startsWith(C) && v !== null).map(([k, v]) => [k.slice(C.length), v as ClosePart]));
+  const close = new Map<string, ClosePart>();
+  for (const k of keys.filter((key) => key.startsWith(C)).sort(byName)) {
+    const v = parts.get(k);
+    if (v !== null && v !== undefined) close.set(k.slice(C.length), v as ClosePart);
+  }
   const monitorSeries: MonitorState['series'] = {};
   for (const item of [...base.monitorOrder, ...[...close.keys()].sort()]) {
     const m = close.get(item)?.m;
@@ -55,12 +68,12 @@ export function assembleParts(base: PartedBase, parts: ReadonlyMap<string, unkno
   }
   const previous: PreviousPlans = {};
   const ledger: WeekLedger = { series: {}, lastWeek: base.ledgerWeek };
-  for (const [item, c] of [...close].sort((a, b) => (a[0] < b[0] ? -1 : 1))) {
+  for (const [item, c] of close) {
     if (c.p) previous[item] = c.p;
     if (c.l) ledger.series[item] = c.l;
   }
   return {
-    sensing: { ...base.sensing, series },
+    sensing: { ...base.sensing, series: series() },
     monitor: { ...base.monitor, series: monitorSeries },
     previous,
     ledger,

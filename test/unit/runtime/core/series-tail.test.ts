@@ -107,5 +107,12 @@ describe('a stage restored from a changelog of full saves and tails', () => {
     }
     expect(tails).toBeGreaterThan(0);
     expect(got).toEqual(expected);
+
+    // A damaged part fails the restore with the state-corrupt error naming that entry, not a generic one.
+    const broken = changelog.find((e) => e.key.includes('|s:'))!.key;
+    const damaged = changelog.map((e) => (e.key === broken && e.value !== null ? { ...e, value: e.value.slice(0, -3) } : e));
+    expect(() => createSensingStage({ partition: 0, models }).restore(damaged)).toThrow(
+      expect.objectContaining({ code: 'NEARCAST_STATE_CORRUPT', message: expect.stringContaining(`changelog entry ${broken} is not JSON`) }),
+    );
   });
 });
