@@ -7,12 +7,15 @@
 /** Deltas beyond this stay exact after zigzag (2|d| + 1 < 2^53). */
 const MAX_DELTA = 2 ** 52 - 1;
 
-// Standard base64 without padding. Node's own codec does the work (a restore decodes hundreds of megabytes). Its
-// decoder skips characters outside the alphabet and takes the URL-safe ones too, so the bytes must encode back to
-// the very text (which also refuses stray bits after the last byte).
+// Standard base64 without padding. Node's own codec does the work (a restore decodes hundreds of megabytes), into
+// one scratch buffer reused by every decode (a buffer per column was most of a large restore's garbage). Its
+// decoder skips characters outside the alphabet, so a text with any is short of bytes; it also takes the URL-safe
+// characters, and stray bits after the last byte, both of which are refused here.
 
 /** Raw columns are little-endian; on such a platform their bytes are copied into a Float64Array as they are. */
 const LITTLE_ENDIAN = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1;
+
+let scratch = Buffer.allocUnsafe(1 << 16);
 
 function toBase64(bytes: Uint8Array, n: number): string {
   const text = Buffer.from(bytes.buffer, bytes.byteOffset, n).toString('base64');
@@ -21,12 +24,24 @@ function toBase64(bytes: Uint8Array, n: number): string {
   return end === text.length ? text : text.slice(0, end);
 }
 
-/** Bytes of unpadded base64 text, undefined when the text is not base64. */
+/** Value of a base64 character of the standard alphabet (-1 for any other). */
+function sextet(c: number): number {
+  if (c >= 65 && c <= 90) return c - 65;
+  if (c >= 97 && c <= 122) return c - 71;
+  if (c >= 48 && c <= 57) return c + 4;
+  return c === 43 ? 62 : c === 47 ? 63 : -1;
+}
+
+/** Bytes of unpadded base64 text (a view valid until the next decode), undefined when the text is not base64. */
 function fromBase64(text: string): Uint8Array | undefined {
-  if (text.length % 4 === 1) return undefined;
-  const bytes = Buffer.from(text, 'base64');
-  if (bytes.length !== Math.floor((text.length * 3) / 4) || toBase64(bytes, bytes.length) !== text) return undefined;
-  return new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length);
+  const rest = text.length % 4;
+  if (rest === 1) return undefined;
+  const n = Math.floor((text.length * 3) / 4);
+  if (scratch.length < n) scratch = Buffer.allocUnsafe(Math.max(n, 2 * scratch.length));
+  if (scratch.write(text, 0, n, 'base64') !== n || text.includes('-') || text.includes('_')) return undefined;
+  // The last character of a text that does not end on a byte boundary carries 2 (rest 3) or 4 (rest 2) unused bits.
+  if (rest > 0 && (sextet(text.charCodeAt(text.length - 1)) & (rest === 2 ? 15 : 3)) !== 0) return undefined;
+  return scratch.subarray(0, n);
 }
 
 function isDeltaCodable(values: ArrayLike<number>): boolean {
