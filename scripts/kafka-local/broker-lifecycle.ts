@@ -29,6 +29,25 @@ export interface LaunchOptions {
   readonly ownerPid?: number | null;
   /** Per phase (answering, warm-up); default 120 s, since a 2-core CI machine is slow on a cold JVM. */
   readonly readyTimeoutMs?: number;
+  /** How long to wait for taken ports to come free before refusing; default 0 (refuse at once). */
+  readonly portWaitMs?: number;
+}
+
+/**
+ * A JVM that was just killed can still hold its sockets for a moment after it stops looking like our broker (the
+ * kernel may release a dying process's memory, and with it the command line we check, before it closes its files;
+ * seen as EADDRINUSE on both ports of a restart on a loaded machine). A restart on the same ports waits for them.
+ */
+const RESTART_PORT_WAIT_MS = 15_000;
+
+/** What keeps the two ports from being listened on, polled until both are free or `waitMs` has passed. */
+export async function portProblemsOf(port: number, controllerPort: number, waitMs: number): Promise<string[]> {
+  const deadline = performance.now() + waitMs;
+  for (;;) {
+    const problems = (await Promise.all([portProblem(port, 'client'), portProblem(controllerPort, 'controller')])).filter((p) => p !== undefined);
+    if (problems.length === 0 || performance.now() >= deadline) return problems;
+    await new Promise((resolve) => setTimeout(resolve, 200));
+  }
 }
 
 export interface BrokerTimings {
@@ -73,7 +92,7 @@ export async function launchLocalBroker(opts: LaunchOptions): Promise<LaunchedBr
   const port = opts.port ?? previous?.port ?? (await freePort());
   let controllerPort = opts.controllerPort ?? previous?.controllerPort ?? (await freePort());
   while (controllerPort === port) controllerPort = await freePort();
-  const portProblems = (await Promise.all([portProblem(port, 'client'), portProblem(controllerPort, 'controller')])).filter((p) => p !== undefined);
+  const portProblems = await portProblemsOf(port, controllerPort, opts.portWaitMs ?? 0);
   if (portProblems.length > 0) throw preconditionError(portProblems);
 
   writeFileSync(paths.serverProperties, serverProperties({ port, controllerPort, dataDir: paths.dataDir }));
@@ -139,7 +158,7 @@ export async function restartLocalBroker(dir: string, opts: { readyTimeoutMs?: n
     throw new NearcastError('NEARCAST_BROKER_PRECONDITION', [`no broker has run from ${paths.dir} yet, so there is nothing to restart; start one first`]);
   }
   await stopLocalBroker(dir);
-  return launchLocalBroker({ dir, port: meta.port, controllerPort: meta.controllerPort, heapMb: meta.heapMb, ...opts });
+  return launchLocalBroker({ dir, port: meta.port, controllerPort: meta.controllerPort, heapMb: meta.heapMb, portWaitMs: RESTART_PORT_WAIT_MS, ...opts });
 }
 
 export interface BrokerStatus {
