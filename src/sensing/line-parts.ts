@@ -174,6 +174,7 @@ class PartsWalk {
   shipmentOrder(): Int32Array {
     const S = this.series.shipments.cols;
     const n = this.series.shipments.length;
+    if (n === this.shipRows) return this.shipOrder.subarray(0, n);
     const before = (a: number, b: number) => {
       const ka = S.knownMs[a]!;
       const kb = S.knownMs[b]!;
@@ -182,7 +183,6 @@ class PartsWalk {
       const hb = S.shipmentHash[b]!;
       return ha < hb ? -1 : ha > hb ? 1 : 0;
     };
-    if (n === this.shipRows) return this.shipOrder.subarray(0, n);
     const added: number[] = [];
     for (let i = this.shipRows; i < n; i++) added.push(i);
     added.sort(before);

@@ -62,7 +62,8 @@ export function assembleParts(base: PartedBase, parts: ReadonlyMap<string, unkno
     if (v !== null && v !== undefined) close.set(k.slice(C.length), v as ClosePart);
   }
   const monitorSeries: MonitorState['series'] = {};
-  for (const item of [...base.monitorOrder, ...[...close.keys()].sort()]) {
+  // `close` is in item order already.
+  for (const item of [...base.monitorOrder, ...close.keys()]) {
     const m = close.get(item)?.m;
     if (m && !(item in monitorSeries)) monitorSeries[item] = m;
   }
