@@ -29,6 +29,8 @@ export interface SeriesParts {
 }
 
 const LAG_UNKNOWN = -1_000_000;
+const SHIP_NO_LINE = -1;
+const SHIP_UNRESOLVED = -2;
 export { LAG_UNKNOWN };
 
 /**
@@ -102,7 +104,10 @@ class PartsWalk {
   private lastMs = -Infinity;
   private lastHash = -Infinity;
   private lastRevision = -Infinity;
-  readonly current = new Map<number, number>();
+  /** Each line (by hash) gets a slot when first walked; slotRow holds the line's current (highest) row. */
+  private readonly slotOf = new Map<number, number>();
+  private slotRow = new Int32Array(0);
+  private slots = 0;
   private rowFlags = new Int32Array(0);
   private rowFirst = new Int32Array(0);
   private readonly byCustomer = new Map<number, number[]>();
@@ -112,6 +117,10 @@ class PartsWalk {
   /** Shipment rows in knowledge order (see shipmentOrder), and how many rows of the table they cover. */
   private shipOrder = new Int32Array(0);
   private shipRows = 0;
+  /** Line slot of each shipment row (SHIP_NO_LINE, or SHIP_UNRESOLVED while its line is not walked yet): a
+   * shipment's line is looked up by hash once, not at every close (hash keys are doubles, slow in a Map). */
+  private shipSlot = new Int32Array(0);
+  private shipSlotRows = 0;
   readonly known: KnownVersion;
   readonly baselinesSeen: Set<BaselineVersionEntry>;
 
@@ -199,6 +208,29 @@ class PartsWalk {
     return order.subarray(0, n);
   }
 
+  /**
+   * The line slot of each shipment row (negative when it has no line or its line is not walked yet); valid until
+   * the next call. A slot's current row is `rowOfSlot`.
+   */
+  shipmentSlots(): Int32Array {
+    const S = this.series.shipments.cols;
+    const n = this.series.shipments.length;
+    this.shipSlot = grow(this.shipSlot, n);
+    const slots = this.shipSlot;
+    for (let r = this.shipSlotRows; r < n; r++) slots[r] = S.lineHash[r]! >= 0 ? SHIP_UNRESOLVED : SHIP_NO_LINE;
+    this.shipSlotRows = n;
+    for (let r = 0; r < n; r++) {
+      if (slots[r] !== SHIP_UNRESOLVED) continue;
+      const found = this.slotOf.get(S.lineHash[r]!);
+      if (found !== undefined) slots[r] = found;
+    }
+    return slots;
+  }
+
+  rowOfSlot(slot: number): number {
+    return this.slotRow[slot]!;
+  }
+
   private reserve(extra: number): void {
     const size = this.n + extra;
     this.knownMs = grow(this.knownMs, size);
@@ -218,7 +250,7 @@ class PartsWalk {
     this.reserve(2 * idx.length);
     this.rowFlags = grow(this.rowFlags, this.series.lines.length);
     this.rowFirst = grow(this.rowFirst, this.series.lines.length);
-    const { current, rowFlags, rowFirst, byCustomer, seriesSizes, seenCustomers, known } = this;
+    const { slotOf, rowFlags, rowFirst, byCustomer, seriesSizes, seenCustomers, known } = this;
     const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
       if (q === 0) return;
       const m = this.n++;
@@ -237,7 +269,8 @@ class PartsWalk {
       this.lastMs = L.knownMs[r]!;
       this.lastHash = h;
       this.lastRevision = L.revision[r]!;
-      const cur = current.get(h);
+      const slot = slotOf.get(h);
+      const cur = slot === undefined ? undefined : this.slotRow[slot]!;
       if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
       const atMs = L.knownMs[r]!;
       const atDay = L.knownDay[r]!;
@@ -261,7 +294,11 @@ class PartsWalk {
       const first = cur !== undefined ? rowFirst[cur]! : atDay;
       if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
       emit(r, q, f, first, atMs, atDay);
-      current.set(h, r);
+      if (slot === undefined) {
+        this.slotRow = grow(this.slotRow, this.slots + 1);
+        this.slotRow[this.slots] = r;
+        slotOf.set(h, this.slots++);
+      } else this.slotRow[slot] = r;
       rowFlags[r] = f;
       rowFirst[r] = first;
       if (q > 0) {
@@ -326,12 +363,12 @@ export function buildParts(series: SeriesState, settings: SensingSettings, weekS
 
 function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
   const L = series.lines.cols;
-  const current = walk.current;
   let firstActivity = walk.firstActivity;
   const m = walk.n;
   const S = series.shipments.cols;
   const sn = series.shipments.length;
   const sIdx = walk.shipmentOrder();
+  const slots = walk.shipmentSlots();
   const sh = {
     n: sn,
     knownMs: new Float64Array(sn),
@@ -346,9 +383,8 @@ function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
     sh.knownDay[k] = S.knownDay[r]!;
     sh.shipDay[k] = S.shipDay[r]!;
     sh.quantity[k] = S.quantity[r]!;
-    const lineRow = S.lineHash[r]! >= 0 ? current.get(S.lineHash[r]!) : undefined;
-    const req = lineRow === undefined ? undefined : L.requestedDay[lineRow]!;
-    sh.lagDays[k] = req === undefined ? LAG_UNKNOWN : S.shipDay[r]! - req;
+    const slot = slots[r]!;
+    sh.lagDays[k] = slot < 0 ? LAG_UNKNOWN : S.shipDay[r]! - L.requestedDay[walk.rowOfSlot(slot)]!;
     if (firstActivity === null || S.shipDay[r]! < firstActivity) firstActivity = S.shipDay[r]!;
   }
 
