@@ -133,16 +133,26 @@ export function decodeColumn(text: string): number[] | undefined {
   return decodeInto(text, (n) => new Array<number>(n));
 }
 
+/** Where a decode puts its values: a typed array of the kind asked for, of length n. */
+export type ColumnAlloc = (kind: 'f64' | 'i32', n: number) => Float64Array | Int32Array;
+
+const fresh: ColumnAlloc = (kind, n) => (kind === 'f64' ? new Float64Array(n) : new Int32Array(n));
+
 /**
  * A column in text form straight into a typed array of its kind (no intermediate list: a restore decodes millions
  * of values); undefined when the text is damaged or holds a value that is not finite. An i32 column takes its
- * values as Int32Array.from would.
+ * values as Int32Array.from would. `alloc` gives the arrays (a restore hands out views of one scratch buffer: an
+ * array buffer per column was much of a large restore's time and garbage).
  */
-export function decodeTypedColumn(text: string, kind: 'f64' | 'i32'): Float64Array | Int32Array | undefined {
+export function decodeTypedColumn(text: string, kind: 'f64' | 'i32', alloc: ColumnAlloc = fresh): Float64Array | Int32Array | undefined {
   if (text[0] === 'f') {
-    const values = decodeInto(text, (n) => new Float64Array(n));
-    if (values === undefined || !values.every(Number.isFinite)) return undefined;
-    return kind === 'f64' ? values : Int32Array.from(values);
+    const values = decodeInto(text, (n) => alloc('f64', n) as Float64Array);
+    if (values === undefined) return undefined;
+    for (let i = 0; i < values.length; i++) if (!Number.isFinite(values[i]!)) return undefined;
+    if (kind === 'f64') return values;
+    const out = alloc('i32', values.length);
+    out.set(values);
+    return out;
   }
-  return decodeInto(text, (n) => (kind === 'f64' ? new Float64Array(n) : new Int32Array(n)));
+  return decodeInto(text, (n) => alloc(kind, n));
 }

@@ -16,15 +16,35 @@ export class Table<S extends ColumnSpec> {
     this.cols = cols ?? Table.allocate(spec, capacity);
   }
 
+  /**
+   * Every column in one array buffer (the f64 columns first, so each view stays aligned): a buffer per column made
+   * a series cost dozens of buffers, each one an allocation and an object the collector tracks.
+   */
   private static allocate<S extends ColumnSpec>(spec: S, capacity: number): Columns<S> {
+    const names = Object.keys(spec);
+    const f64 = names.filter((name) => spec[name] === 'f64');
+    const i32 = names.filter((name) => spec[name] === 'i32');
+    const buffer = new ArrayBuffer(capacity * (8 * f64.length + 4 * i32.length));
     const out: Record<string, Float64Array | Int32Array> = {};
-    for (const [name, kind] of Object.entries(spec)) out[name] = kind === 'f64' ? new Float64Array(capacity) : new Int32Array(capacity);
-    return out as Columns<S>;
+    let at = 0;
+    for (const name of f64) {
+      out[name] = new Float64Array(buffer, at, capacity);
+      at += 8 * capacity;
+    }
+    for (const name of i32) {
+      out[name] = new Int32Array(buffer, at, capacity);
+      at += 4 * capacity;
+    }
+    // Key order of the spec, which snapshots and toJSON follow.
+    const ordered: Record<string, Float64Array | Int32Array> = {};
+    for (const name of names) ordered[name] = out[name]!;
+    return ordered as Columns<S>;
   }
 
   get capacity(): number {
-    const first = Object.values(this.cols)[0] as Float64Array | Int32Array | undefined;
-    return first ? first.length : 0;
+    // Read on every push: from a column's length, not a list of the columns made each time.
+    for (const name in this.cols) return (this.cols[name] as Float64Array | Int32Array).length;
+    return 0;
   }
 
   /** Appends a row and returns its index. */
@@ -74,8 +94,9 @@ export class Table<S extends ColumnSpec> {
   }
 
   /**
-   * A table over the given columns as they are (not copied): each must be of its spec's kind and all of one length.
-   * Columns named in `unsaved` are made, every row holding the value given. Undefined when a column is missing.
+   * A table of the given columns' values (copied into one buffer, so the columns may be views of scratch space):
+   * each must be of its spec's kind and all of one length. Columns named in `unsaved` are made, every row holding
+   * the value given. Undefined when a column is missing.
    */
   static fromColumns<S extends ColumnSpec>(spec: S, given: Readonly<Record<string, Float64Array | Int32Array | undefined>>, unsaved: Partial<Record<keyof S & string, number>> = {}): Table<S> | undefined {
     let n = -1;
@@ -87,12 +108,13 @@ export class Table<S extends ColumnSpec> {
       n = col.length;
     }
     const length = Math.max(0, n);
-    const cols: Record<string, Float64Array | Int32Array> = {};
-    for (const [name, kind] of Object.entries(spec)) {
+    const t = new Table(spec, length);
+    for (const name of Object.keys(spec)) {
       const fill = (unsaved as Record<string, number | undefined>)[name];
-      cols[name] = fill === undefined ? given[name]! : (kind === 'f64' ? new Float64Array(length) : new Int32Array(length)).fill(fill);
+      const col = t.cols[name] as Float64Array | Int32Array;
+      if (fill === undefined) col.set(given[name]!);
+      else col.fill(fill);
     }
-    const t = new Table(spec, 0, cols as Columns<S>);
     t.length = length;
     return t;
   }

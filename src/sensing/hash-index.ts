@@ -12,12 +12,33 @@ export class HashIndex {
   private mask: number;
   private count = 0;
 
-  constructor(capacity = 8) {
+  constructor(capacity = 8, block?: { readonly buffer: ArrayBuffer; readonly offset: number }) {
+    const size = HashIndex.slotsFor(capacity);
+    const buffer = block?.buffer ?? new ArrayBuffer(12 * size);
+    const at = block?.offset ?? 0;
+    // Keys and values in one buffer (and a series' indexes in one, see `together`): each buffer is an allocation
+    // and an object the collector tracks, which dominated restoring 100k series.
+    this.keys = new Float64Array(buffer, at, size).fill(EMPTY);
+    this.values = new Int32Array(buffer, at + 8 * size, size);
+    this.mask = size - 1;
+  }
+
+  private static slotsFor(capacity: number): number {
     let size = 8;
     while (size < capacity * 2) size *= 2;
-    this.keys = new Float64Array(size).fill(EMPTY);
-    this.values = new Int32Array(size);
-    this.mask = size - 1;
+    return size;
+  }
+
+  /** Indexes for the given capacities sharing one buffer (one that grows moves to a buffer of its own). */
+  static together(capacities: readonly number[]): HashIndex[] {
+    const sizes = capacities.map((c) => HashIndex.slotsFor(c));
+    const buffer = new ArrayBuffer(12 * sizes.reduce((t, n) => t + n, 0));
+    let offset = 0;
+    return capacities.map((c, k) => {
+      const index = new HashIndex(c, { buffer, offset });
+      offset += 12 * sizes[k]!;
+      return index;
+    });
   }
 
   get size(): number {
@@ -69,6 +90,7 @@ export class HashIndex {
   }
 
   clear(): void {
+    if (this.count === 0) return; // nothing is ever removed alone, so no key is stored
     this.keys.fill(EMPTY);
     this.count = 0;
   }
@@ -76,8 +98,10 @@ export class HashIndex {
   private grow(): void {
     const oldKeys = this.keys;
     const oldValues = this.values;
-    this.keys = new Float64Array(oldKeys.length * 2).fill(EMPTY);
-    this.values = new Int32Array(oldKeys.length * 2);
+    const size = oldKeys.length * 2;
+    const buffer = new ArrayBuffer(12 * size);
+    this.keys = new Float64Array(buffer, 0, size).fill(EMPTY);
+    this.values = new Int32Array(buffer, 8 * size, size);
     this.mask = this.keys.length - 1;
     for (let j = 0; j < oldKeys.length; j++) {
       const k = oldKeys[j]!;

@@ -71,14 +71,17 @@ export interface SeriesState {
 
 /** A new series; a restore passes the tables it loaded (reindexSeries must follow). */
 export function createSeriesState(item: string, tables?: { readonly lines: LineTable; readonly shipments: ShipmentTable }): SeriesState {
+  const [lineHeads, shipmentIds, eventIds] = tables
+    ? HashIndex.together([tables.lines.length, tables.shipments.length, tables.lines.length + tables.shipments.length])
+    : [new HashIndex(), new HashIndex(), new HashIndex()];
   return {
     item,
     lines: tables?.lines ?? new Table(LINE_COLUMNS, 8),
-    lineHeads: new HashIndex(tables?.lines.length),
+    lineHeads: lineHeads!,
     shipments: tables?.shipments ?? new Table(SHIPMENT_COLUMNS, 4),
-    shipmentIds: new HashIndex(tables?.shipments.length),
+    shipmentIds: shipmentIds!,
     baselines: [],
-    eventIds: new HashIndex(tables ? tables.lines.length + tables.shipments.length : undefined),
+    eventIds: eventIds!,
     changeCount: 0,
     layoutCount: 0,
     prunedFirstRequested: Infinity,

@@ -1,7 +1,8 @@
 import { createLocationCalendar } from '../calendar/location-calendar.ts';
 import type { Location } from '../contracts/location.ts';
 import { NearcastError } from '../errors.ts';
-import { decodeColumn, decodeTypedColumn, encodeColumn } from './column-codec.ts';
+import { Arena } from './arena.ts';
+import { decodeColumn, decodeTypedColumn, encodeColumn, type ColumnAlloc } from './column-codec.ts';
 import { Table, type ColumnSpec } from './columns.ts';
 import type { LocationState } from './location-state.ts';
 import { createSeriesState, LINE_COLUMNS, reindexSeries, SHIPMENT_COLUMNS, type BaselineVersionEntry, type SeriesState } from './series-state.ts';
@@ -219,15 +220,25 @@ function columnValues(saved: unknown): number[] | undefined {
   return typeof saved === 'string' ? decodeColumn(saved) : undefined;
 }
 
-/** A saved table's columns as typed arrays of their kinds; a column is undefined when damaged or not finite. */
+// A restore decodes each series' columns into scratch space, then copies them into one buffer per table (and one
+// for all its baseline versions): an array buffer per column or per baseline version was most of a 100k-series
+// restore's allocations and of its collector's work.
+const scratch = new Arena(1 << 20);
+const scratchAlloc: ColumnAlloc = (kind, n) => (kind === 'f64' ? scratch.f64(n) : scratch.i32(n));
+
+/** A saved table's columns as typed arrays of their kinds (scratch views); a column is undefined when damaged or not finite. */
 function typedColumns(spec: ColumnSpec, saved: unknown): Record<string, Float64Array | Int32Array | undefined> | undefined {
   if (saved === null || typeof saved !== 'object') return undefined;
   const out: Record<string, Float64Array | Int32Array | undefined> = {};
   for (const [name, kind] of Object.entries(spec)) {
     const col = (saved as Record<string, unknown>)[name];
-    if (typeof col === 'string') out[name] = decodeTypedColumn(col, kind);
+    if (typeof col === 'string') out[name] = decodeTypedColumn(col, kind, scratchAlloc);
     // Plain lists: version 1, and rows a series' tail appended to its last full save (series-tail.ts).
-    else if (Array.isArray(col) && col.every((v) => typeof v === 'number' && Number.isFinite(v))) out[name] = kind === 'f64' ? Float64Array.from(col) : Int32Array.from(col);
+    else if (Array.isArray(col) && col.every((v) => typeof v === 'number' && Number.isFinite(v))) {
+      const values = scratchAlloc(kind, col.length);
+      values.set(col as number[]);
+      out[name] = values;
+    }
   }
   return out;
 }
@@ -237,11 +248,41 @@ function tableOf<S extends ColumnSpec>(spec: S, saved: unknown, unsaved?: Partia
   return cols && Table.fromColumns(spec, cols, unsaved);
 }
 
+/** The baseline versions of a saved series, their weeks and quantities views of one buffer (NEARCAST_STATE_CORRUPT when damaged). */
+function restoreBaselines(item: string, saved: unknown): BaselineVersionEntry[] {
+  const baselines = baselineList(saved);
+  if (!baselines) corrupt(`series ${item}: baselines are incomplete`);
+  let total = 0;
+  for (const b of baselines) {
+    const weeks = columnValues(b?.weeks);
+    const quantities = columnValues(b?.quantities);
+    if (!weeks || !quantities || weeks.length !== quantities.length) {
+      corrupt(`series ${item}: a baseline version has mismatched weeks`);
+    }
+    for (const k of ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay'] as const) {
+      if (!Number.isFinite(b[k])) corrupt(`series ${item}: baseline ${k} is not a number`);
+    }
+    total += weeks.length;
+  }
+  const buffer = new ArrayBuffer(12 * total);
+  let at = 0;
+  return baselines.map((b) => {
+    const n = (b.weeks as number[]).length;
+    const quantities = new Float64Array(buffer, 8 * at, n);
+    const weeks = new Int32Array(buffer, 8 * total + 4 * at, n);
+    quantities.set(b.quantities as number[]);
+    weeks.set(b.weeks as number[]);
+    at += n;
+    return { version: b.version, eventHash: b.eventHash, publishedMs: b.publishedMs, knownMs: b.knownMs, knownDay: b.knownDay, weeks, quantities };
+  });
+}
+
 function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
   if (typeof snap?.item !== 'string') corrupt('a series has no item');
   // Tables made of the decoded columns themselves: appending row by row cost an object per row and repeated
   // regrowth, and decoding into plain lists a copy of every value, most of a large restore's time and garbage.
   // prevSameLine is not saved; reindexSeries rebuilds it.
+  scratch.reset();
   const lines = tableOf(LINE_COLUMNS, snap.lines, { prevSameLine: -1 });
   const shipments = tableOf(SHIPMENT_COLUMNS, snap.shipments);
   if (!lines) corrupt(`series ${snap.item}: order lines are incomplete`);
@@ -251,28 +292,7 @@ function restoreSeries(snap: SeriesSnapshot, customers: number): SeriesState {
     if (customer[i]! >= customers || customer[i]! < -1) corrupt(`series ${snap.item}: a line names an unknown customer`);
   }
   const s = createSeriesState(snap.item, { lines, shipments });
-  const baselines = baselineList(snap.baselines);
-  if (!baselines) corrupt(`series ${snap.item}: baselines are incomplete`);
-  for (const b of baselines) {
-    const weeks = columnValues(b?.weeks);
-    const quantities = columnValues(b?.quantities);
-    if (!weeks || !quantities || weeks.length !== quantities.length) {
-      corrupt(`series ${snap.item}: a baseline version has mismatched weeks`);
-    }
-    for (const k of ['version', 'eventHash', 'publishedMs', 'knownMs', 'knownDay'] as const) {
-      if (!Number.isFinite(b[k])) corrupt(`series ${snap.item}: baseline ${k} is not a number`);
-    }
-    const entry: BaselineVersionEntry = {
-      version: b.version,
-      eventHash: b.eventHash,
-      publishedMs: b.publishedMs,
-      knownMs: b.knownMs,
-      knownDay: b.knownDay,
-      weeks: Int32Array.from(weeks),
-      quantities: Float64Array.from(quantities),
-    };
-    s.baselines.push(entry);
-  }
+  s.baselines.push(...restoreBaselines(snap.item, snap.baselines));
   s.baselines.sort((a, b) => a.version - b.version);
   for (const k of ['prunedFirstRequested', 'prunedFirstShipped'] as const) {
     const v: unknown = snap[k];

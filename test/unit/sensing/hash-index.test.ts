@@ -53,6 +53,24 @@ describe('HashIndex', () => {
     expect(index.get(hash53('event-50000'))).toBe(-1);
   });
 
+  it('indexes sharing one buffer answer each like its own Map, through growth of any of them', () => {
+    fc.assert(
+      fc.property(fc.array(fc.tuple(fc.integer({ min: 0, max: 2 }), key53, fc.integer({ min: 0, max: 2 ** 31 - 1 })), { maxLength: 300 }), fc.array(fc.nat(40), { minLength: 3, maxLength: 3 }), (ops, capacities) => {
+        const indexes = HashIndex.together(capacities);
+        const refs = [new Map<number, number>(), new Map<number, number>(), new Map<number, number>()];
+        for (const [which, key, value] of ops) {
+          indexes[which]!.set(key, value);
+          refs[which]!.set(key, value);
+        }
+        refs.forEach((ref, k) => {
+          expect(indexes[k]!.size).toBe(ref.size);
+          for (const [key, value] of ref) expect(indexes[k]!.get(key)).toBe(value);
+          for (const [, key] of ops) expect(indexes[k]!.has(key)).toBe(ref.has(key));
+        });
+      }),
+    );
+  });
+
   it('refuses a key that is not a finite number instead of losing it', () => {
     expect(() => new HashIndex().set(NaN, 1)).toThrow(/finite/);
   });

@@ -36,12 +36,14 @@ describe('restoreLocationState', () => {
 });
 
 describe('Table.fromColumns', () => {
-  it('takes the columns as given, makes the unsaved ones with their value, and refuses missing, ragged or mistyped columns', () => {
+  it('copies the columns given into one buffer, makes the unsaved ones with their value, and refuses missing, ragged or mistyped columns', () => {
     const spec = { a: 'f64', b: 'i32', idx: 'i32' } as const;
     const a = Float64Array.of(1.5, 2.5, 3.5);
     const t = Table.fromColumns(spec, { a, b: Int32Array.of(4, 5, 6) }, { idx: -1 })!;
     expect(t.length).toBe(3);
-    expect(t.cols.a).toBe(a);
+    a[0] = 99; // the caller's array (scratch space in a restore) may be reused at once
+    expect([...t.cols.a]).toEqual([1.5, 2.5, 3.5]);
+    expect(t.cols.b.buffer).toBe(t.cols.a.buffer);
     expect([...t.cols.idx]).toEqual([-1, -1, -1]);
     t.push({ a: 7, b: 8, idx: 2 });
     expect(t.toJSON()).toEqual({ a: [1.5, 2.5, 3.5, 7], b: [4, 5, 6, 8], idx: [-1, -1, -1, 2] });
