@@ -71,9 +71,12 @@ export interface SeriesState {
 
 /** A new series; a restore passes the tables it loaded (reindexSeries must follow). */
 export function createSeriesState(item: string, tables?: { readonly lines: LineTable; readonly shipments: ShipmentTable }): SeriesState {
-  const [lineHeads, shipmentIds, eventIds] = tables
-    ? HashIndex.together([tables.lines.length, tables.shipments.length, tables.lines.length + tables.shipments.length])
-    : [new HashIndex(), new HashIndex(), new HashIndex()];
+  const shapes = [
+    { capacity: tables?.lines.length, values: true },
+    { capacity: tables?.shipments.length, values: false },
+    { capacity: tables ? tables.lines.length + tables.shipments.length : undefined, values: false },
+  ];
+  const [lineHeads, shipmentIds, eventIds] = tables ? HashIndex.together(shapes) : shapes.map((shape) => new HashIndex(shape));
   return {
     item,
     lines: tables?.lines ?? new Table(LINE_COLUMNS, 8),

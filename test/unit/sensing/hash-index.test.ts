@@ -53,14 +53,20 @@ describe('HashIndex', () => {
     expect(index.get(hash53('event-50000'))).toBe(-1);
   });
 
-  it('indexes sharing one buffer answer each like its own Map, through growth of any of them', () => {
+  it('indexes and sets sharing one buffer answer each like its own Map, through growth of any of them', () => {
+    const shapes = fc.array(fc.record({ capacity: fc.nat(40), values: fc.boolean() }), { minLength: 3, maxLength: 3 });
     fc.assert(
-      fc.property(fc.array(fc.tuple(fc.integer({ min: 0, max: 2 }), key53, fc.integer({ min: 0, max: 2 ** 31 - 1 })), { maxLength: 300 }), fc.array(fc.nat(40), { minLength: 3, maxLength: 3 }), (ops, capacities) => {
-        const indexes = HashIndex.together(capacities);
+      fc.property(fc.array(fc.tuple(fc.integer({ min: 0, max: 2 }), key53, fc.integer({ min: 0, max: 2 ** 31 - 1 })), { maxLength: 300 }), shapes, (ops, given) => {
+        const indexes = HashIndex.together(given);
         const refs = [new Map<number, number>(), new Map<number, number>(), new Map<number, number>()];
         for (const [which, key, value] of ops) {
-          indexes[which]!.set(key, value);
-          refs[which]!.set(key, value);
+          if (given[which]!.values) {
+            indexes[which]!.set(key, value);
+            refs[which]!.set(key, value);
+          } else {
+            indexes[which]!.add(key);
+            refs[which]!.set(key, 0);
+          }
         }
         refs.forEach((ref, k) => {
           expect(indexes[k]!.size).toBe(ref.size);
@@ -69,6 +75,16 @@ describe('HashIndex', () => {
         });
       }),
     );
+  });
+
+  it('as a set keeps 8 bytes a slot and refuses a value, and a table sized for n keys holds them without growing', () => {
+    const set = new HashIndex({ capacity: 600, values: false });
+    const bytes = set.byteLength;
+    for (let i = 0; i < 600; i++) set.add(hash53(`event-${i}`));
+    expect(set.byteLength).toBe(bytes);
+    expect(bytes).toBe(8 * Math.ceil(600 / 0.6));
+    expect(set.get(hash53('event-3'))).toBe(0);
+    expect(() => set.set(hash53('event-3'), 4)).toThrow(/set/);
   });
 
   it('refuses a key that is not a finite number instead of losing it', () => {
