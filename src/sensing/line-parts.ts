@@ -117,6 +117,17 @@ class PartsWalk {
   /** Shipment rows in knowledge order (see shipmentOrder), and how many rows of the table they cover. */
   private shipOrder = new Int32Array(0);
   private shipRows = 0;
+  /**
+   * The shipments' columns in knowledge order, kept from one call to the next: positions below `shipCopied` hold
+   * their rows' values (a day's shipments only append). A close made five new arrays per series before, and a
+   * fresh array buffer is an allocation the engine accounts and sweeps on its own (about half a second a close
+   * at 10k series).
+   */
+  private shipCols = { knownMs: new Float64Array(0), knownDay: new Int32Array(0), shipDay: new Int32Array(0), quantity: new Float64Array(0), lagDays: new Int32Array(0) };
+  private shipCopied = 0;
+  /** Earliest ship day among the shipment table's rows below `shipMinRows`. */
+  private shipMinDay: number | null = null;
+  private shipMinRows = 0;
   /** Line slot of each shipment row (SHIP_NO_LINE, or SHIP_UNRESOLVED while its line is not walked yet): a
    * shipment's line is looked up by hash once, not at every close (hash keys are doubles, slow in a Map). */
   private shipSlot = new Int32Array(0);
@@ -200,6 +211,7 @@ class PartsWalk {
     if (done > 0 && before(order[done - 1]!, added[0]!) > 0) {
       const all = Array.from({ length: n }, (_, i) => i).sort(before);
       order.set(all);
+      this.shipCopied = 0;
     } else {
       order.set(added, done);
     }
@@ -210,7 +222,7 @@ class PartsWalk {
 
   /**
    * The line slot of each shipment row (negative when it has no line or its line is not walked yet); valid until
-   * the next call. A slot's current row is `rowOfSlot`.
+   * the next call.
    */
   shipmentSlots(): Int32Array {
     const S = this.series.shipments.cols;
@@ -227,8 +239,42 @@ class PartsWalk {
     return slots;
   }
 
-  rowOfSlot(slot: number): number {
-    return this.slotRow[slot]!;
+  /**
+   * The shipments in knowledge order with each one's lag behind its line's requested date, and the earliest ship
+   * day. The arrays are the walk's own, valid until the series' next parts (the lags are worked out again each
+   * time: a line's new revision can move its requested date).
+   */
+  shipmentColumns(): { readonly parts: SeriesParts['shipments']; readonly firstShipDay: number | null } {
+    const S = this.series.shipments.cols;
+    const L = this.series.lines.cols;
+    const n = this.series.shipments.length;
+    const order = this.shipmentOrder();
+    const slots = this.shipmentSlots();
+    const c = this.shipCols;
+    c.knownMs = grow(c.knownMs, n);
+    c.knownDay = grow(c.knownDay, n);
+    c.shipDay = grow(c.shipDay, n);
+    c.quantity = grow(c.quantity, n);
+    c.lagDays = grow(c.lagDays, n);
+    for (let k = this.shipCopied; k < n; k++) {
+      const r = order[k]!;
+      c.knownMs[k] = S.knownMs[r]!;
+      c.knownDay[k] = S.knownDay[r]!;
+      c.shipDay[k] = S.shipDay[r]!;
+      c.quantity[k] = S.quantity[r]!;
+    }
+    this.shipCopied = n;
+    for (let k = 0; k < n; k++) {
+      const r = order[k]!;
+      const slot = slots[r]!;
+      c.lagDays[k] = slot < 0 ? LAG_UNKNOWN : S.shipDay[r]! - L.requestedDay[this.slotRow[slot]!]!;
+    }
+    for (let r = this.shipMinRows; r < n; r++) if (this.shipMinDay === null || S.shipDay[r]! < this.shipMinDay) this.shipMinDay = S.shipDay[r]!;
+    this.shipMinRows = n;
+    return {
+      parts: { n, knownMs: c.knownMs.subarray(0, n), knownDay: c.knownDay.subarray(0, n), shipDay: c.shipDay.subarray(0, n), quantity: c.quantity.subarray(0, n), lagDays: c.lagDays.subarray(0, n) },
+      firstShipDay: this.shipMinDay,
+    };
   }
 
   private reserve(extra: number): void {
@@ -337,7 +383,7 @@ export function seriesParts(series: SeriesState, settings: SensingSettings, week
     walk = new PartsWalk(series, settings, weekStart);
     walk.extend();
   }
-  const parts = finishParts(series, walk);
+  const parts = finishParts(walk);
   cache.set(series, { changeCount: series.changeCount, layoutCount: series.layoutCount, walk, parts });
   return parts;
 }
@@ -358,36 +404,14 @@ export function judgedRowFlags(series: SeriesState): { readonly flags: Int32Arra
 export function buildParts(series: SeriesState, settings: SensingSettings, weekStart: number): SeriesParts {
   const walk = new PartsWalk(series, settings, weekStart);
   walk.extend();
-  return finishParts(series, walk);
+  return finishParts(walk);
 }
 
-function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
-  const L = series.lines.cols;
-  let firstActivity = walk.firstActivity;
+function finishParts(walk: PartsWalk): SeriesParts {
   const m = walk.n;
-  const S = series.shipments.cols;
-  const sn = series.shipments.length;
-  const sIdx = walk.shipmentOrder();
-  const slots = walk.shipmentSlots();
-  const sh = {
-    n: sn,
-    knownMs: new Float64Array(sn),
-    knownDay: new Int32Array(sn),
-    shipDay: new Int32Array(sn),
-    quantity: new Float64Array(sn),
-    lagDays: new Int32Array(sn),
-  };
-  for (let k = 0; k < sn; k++) {
-    const r = sIdx[k]!;
-    sh.knownMs[k] = S.knownMs[r]!;
-    sh.knownDay[k] = S.knownDay[r]!;
-    sh.shipDay[k] = S.shipDay[r]!;
-    sh.quantity[k] = S.quantity[r]!;
-    const slot = slots[r]!;
-    sh.lagDays[k] = slot < 0 ? LAG_UNKNOWN : S.shipDay[r]! - L.requestedDay[walk.rowOfSlot(slot)]!;
-    if (firstActivity === null || S.shipDay[r]! < firstActivity) firstActivity = S.shipDay[r]!;
-  }
-
+  const { parts: shipments, firstShipDay } = walk.shipmentColumns();
+  let firstActivity = walk.firstActivity;
+  if (firstShipDay !== null && (firstActivity === null || firstShipDay < firstActivity)) firstActivity = firstShipDay;
   return {
     n: m,
     knownMs: walk.knownMs.subarray(0, m),
@@ -398,7 +422,7 @@ function finishParts(series: SeriesState, walk: PartsWalk): SeriesParts {
     customer: walk.customer.subarray(0, m),
     flags: walk.flags.subarray(0, m),
     quantity: walk.quantity.subarray(0, m),
-    shipments: sh,
+    shipments,
     firstActivityDay: firstActivity,
   };
 }
