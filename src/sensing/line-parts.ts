@@ -119,9 +119,9 @@ class PartsWalk {
   private shipRows = 0;
   /**
    * The shipments' columns in knowledge order, kept from one call to the next: positions below `shipCopied` hold
-   * their rows' values (a day's shipments only append). A close made five new arrays per series before, and a
-   * fresh array buffer is an allocation the engine accounts and sweeps on its own (about half a second a close
-   * at 10k series).
+   * their rows' values (a day's shipments only append). A close thus makes no new arrays per series: each fresh
+   * array buffer is an allocation the engine accounts and sweeps on its own (five per series cost about half a
+   * second a close at 10k series).
    */
   private shipCols = { knownMs: new Float64Array(0), knownDay: new Int32Array(0), shipDay: new Int32Array(0), quantity: new Float64Array(0), lagDays: new Int32Array(0) };
   private shipCopied = 0;
@@ -224,7 +224,7 @@ class PartsWalk {
    * The line slot of each shipment row (negative when it has no line or its line is not walked yet); valid until
    * the next call.
    */
-  shipmentSlots(): Int32Array {
+  private shipmentSlots(): Int32Array {
     const S = this.series.shipments.cols;
     const n = this.series.shipments.length;
     this.shipSlot = grow(this.shipSlot, n);

@@ -253,7 +253,7 @@ function restoreBaselines(item: string, saved: unknown): BaselineVersionEntry[] 
   const baselines = baselineList(saved);
   if (!baselines) corrupt(`series ${item}: baselines are incomplete`);
   let total = 0;
-  for (const b of baselines) {
+  const decoded = baselines.map((b) => {
     const weeks = columnValues(b?.weeks);
     const quantities = columnValues(b?.quantities);
     if (!weeks || !quantities || weeks.length !== quantities.length) {
@@ -263,15 +263,17 @@ function restoreBaselines(item: string, saved: unknown): BaselineVersionEntry[] 
       if (!Number.isFinite(b[k])) corrupt(`series ${item}: baseline ${k} is not a number`);
     }
     total += weeks.length;
-  }
+    return { weeks, quantities };
+  });
   const buffer = new ArrayBuffer(12 * total);
   let at = 0;
-  return baselines.map((b) => {
-    const n = (b.weeks as number[]).length;
+  return baselines.map((b, k) => {
+    const values = decoded[k]!;
+    const n = values.weeks.length;
     const quantities = new Float64Array(buffer, 8 * at, n);
     const weeks = new Int32Array(buffer, 8 * total + 4 * at, n);
-    quantities.set(b.quantities as number[]);
-    weeks.set(b.weeks as number[]);
+    quantities.set(values.quantities);
+    weeks.set(values.weeks);
     at += n;
     return { version: b.version, eventHash: b.eventHash, publishedMs: b.publishedMs, knownMs: b.knownMs, knownDay: b.knownDay, weeks, quantities };
   });
