@@ -22,23 +22,22 @@ export class Table<S extends ColumnSpec> {
    */
   private static allocate<S extends ColumnSpec>(spec: S, capacity: number): Columns<S> {
     const names = Object.keys(spec);
-    const f64 = names.filter((name) => spec[name] === 'f64');
-    const i32 = names.filter((name) => spec[name] === 'i32');
-    const buffer = new ArrayBuffer(capacity * (8 * f64.length + 4 * i32.length));
+    const f64Columns = names.filter((name) => spec[name] === 'f64').length;
+    const buffer = new ArrayBuffer(capacity * (8 * f64Columns + 4 * (names.length - f64Columns)));
+    // Made in the spec's key order, which snapshots and toJSON follow.
     const out: Record<string, Float64Array | Int32Array> = {};
-    let at = 0;
-    for (const name of f64) {
-      out[name] = new Float64Array(buffer, at, capacity);
-      at += 8 * capacity;
+    let f64At = 0;
+    let i32At = 8 * capacity * f64Columns;
+    for (const name of names) {
+      if (spec[name] === 'f64') {
+        out[name] = new Float64Array(buffer, f64At, capacity);
+        f64At += 8 * capacity;
+      } else {
+        out[name] = new Int32Array(buffer, i32At, capacity);
+        i32At += 4 * capacity;
+      }
     }
-    for (const name of i32) {
-      out[name] = new Int32Array(buffer, at, capacity);
-      at += 4 * capacity;
-    }
-    // Key order of the spec, which snapshots and toJSON follow.
-    const ordered: Record<string, Float64Array | Int32Array> = {};
-    for (const name of names) ordered[name] = out[name]!;
-    return ordered as Columns<S>;
+    return out as Columns<S>;
   }
 
   get capacity(): number {

@@ -1,5 +1,6 @@
 import { weekStartOf } from '../calendar/weeks.ts';
 import { weekValue } from './baseline-lookup.ts';
+import { HashIndex } from './hash-index.ts';
 import type { SensingSettings } from './settings.ts';
 import type { BaselineVersionEntry, SeriesState } from './series-state.ts';
 
@@ -29,8 +30,6 @@ export interface SeriesParts {
 }
 
 const LAG_UNKNOWN = -1_000_000;
-const SHIP_NO_LINE = -1;
-const SHIP_UNRESOLVED = -2;
 export { LAG_UNKNOWN };
 
 /**
@@ -104,10 +103,8 @@ class PartsWalk {
   private lastMs = -Infinity;
   private lastHash = -Infinity;
   private lastRevision = -Infinity;
-  /** Each line (by hash) gets a slot when first walked; slotRow holds the line's current (highest) row. */
-  private readonly slotOf = new Map<number, number>();
-  private slotRow = new Int32Array(0);
-  private slots = 0;
+  /** Each line's current (highest) row, by line hash (a typed index: every shipment looks its line up at each close). */
+  private readonly current = new HashIndex();
   private rowFlags = new Int32Array(0);
   private rowFirst = new Int32Array(0);
   private readonly byCustomer = new Map<number, number[]>();
@@ -128,10 +125,6 @@ class PartsWalk {
   /** Earliest ship day among the shipment table's rows below `shipMinRows`. */
   private shipMinDay: number | null = null;
   private shipMinRows = 0;
-  /** Line slot of each shipment row (SHIP_NO_LINE, or SHIP_UNRESOLVED while its line is not walked yet): a
-   * shipment's line is looked up by hash once, not at every close (hash keys are doubles, slow in a Map). */
-  private shipSlot = new Int32Array(0);
-  private shipSlotRows = 0;
   readonly known: KnownVersion;
   readonly baselinesSeen: Set<BaselineVersionEntry>;
 
@@ -221,25 +214,6 @@ class PartsWalk {
   }
 
   /**
-   * The line slot of each shipment row (negative when it has no line or its line is not walked yet); valid until
-   * the next call.
-   */
-  private shipmentSlots(): Int32Array {
-    const S = this.series.shipments.cols;
-    const n = this.series.shipments.length;
-    this.shipSlot = grow(this.shipSlot, n);
-    const slots = this.shipSlot;
-    for (let r = this.shipSlotRows; r < n; r++) slots[r] = S.lineHash[r]! >= 0 ? SHIP_UNRESOLVED : SHIP_NO_LINE;
-    this.shipSlotRows = n;
-    for (let r = 0; r < n; r++) {
-      if (slots[r] !== SHIP_UNRESOLVED) continue;
-      const found = this.slotOf.get(S.lineHash[r]!);
-      if (found !== undefined) slots[r] = found;
-    }
-    return slots;
-  }
-
-  /**
    * The shipments in knowledge order with each one's lag behind its line's requested date, and the earliest ship
    * day. The arrays are the walk's own, valid until the series' next parts (the lags are worked out again each
    * time: a line's new revision can move its requested date).
@@ -249,7 +223,6 @@ class PartsWalk {
     const L = this.series.lines.cols;
     const n = this.series.shipments.length;
     const order = this.shipmentOrder();
-    const slots = this.shipmentSlots();
     const c = this.shipCols;
     c.knownMs = grow(c.knownMs, n);
     c.knownDay = grow(c.knownDay, n);
@@ -266,8 +239,8 @@ class PartsWalk {
     this.shipCopied = n;
     for (let k = 0; k < n; k++) {
       const r = order[k]!;
-      const slot = slots[r]!;
-      c.lagDays[k] = slot < 0 ? LAG_UNKNOWN : S.shipDay[r]! - L.requestedDay[this.slotRow[slot]!]!;
+      const lineRow = S.lineHash[r]! >= 0 ? this.current.get(S.lineHash[r]!) : -1;
+      c.lagDays[k] = lineRow < 0 ? LAG_UNKNOWN : S.shipDay[r]! - L.requestedDay[lineRow]!;
     }
     for (let r = this.shipMinRows; r < n; r++) if (this.shipMinDay === null || S.shipDay[r]! < this.shipMinDay) this.shipMinDay = S.shipDay[r]!;
     this.shipMinRows = n;
@@ -296,7 +269,7 @@ class PartsWalk {
     this.reserve(2 * idx.length);
     this.rowFlags = grow(this.rowFlags, this.series.lines.length);
     this.rowFirst = grow(this.rowFirst, this.series.lines.length);
-    const { slotOf, rowFlags, rowFirst, byCustomer, seriesSizes, seenCustomers, known } = this;
+    const { current, rowFlags, rowFirst, byCustomer, seriesSizes, seenCustomers, known } = this;
     const emit = (row: number, q: number, f: number, first: number, atMs: number, atDay: number) => {
       if (q === 0) return;
       const m = this.n++;
@@ -315,16 +288,15 @@ class PartsWalk {
       this.lastMs = L.knownMs[r]!;
       this.lastHash = h;
       this.lastRevision = L.revision[r]!;
-      const slot = slotOf.get(h);
-      const cur = slot === undefined ? undefined : this.slotRow[slot]!;
-      if (cur !== undefined && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
+      const cur = current.get(h);
+      if (cur >= 0 && L.revision[r]! <= L.revision[cur]!) continue; // superseded: no effect on the book
       const atMs = L.knownMs[r]!;
       const atDay = L.knownDay[r]!;
       if (this.firstActivity === null || L.orderedDay[r]! < this.firstActivity) this.firstActivity = Math.min(L.orderedDay[r]!, atDay);
       const q = L.quantity[r]!;
       const cust = L.customer[r]!;
-      let f = cur !== undefined ? rowFlags[cur]! & PART_FIRST_FILL : 0;
-      if (cur === undefined && cust >= 0 && !seenCustomers.has(cust)) {
+      let f = cur >= 0 ? rowFlags[cur]! & PART_FIRST_FILL : 0;
+      if (cur < 0 && cust >= 0 && !seenCustomers.has(cust)) {
         f |= PART_FIRST_FILL;
         seenCustomers.add(cust);
       }
@@ -337,14 +309,10 @@ class PartsWalk {
         const base = weekValue(known.at(atMs), weekStartOf(L.requestedDay[r]!, this.weekStart));
         if (base !== undefined && q > settings.largeLineWeekShare * base && q > settings.largeLineFactor * median(usual)) f |= PART_LARGE;
       }
-      const first = cur !== undefined ? rowFirst[cur]! : atDay;
-      if (cur !== undefined) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
+      const first = cur >= 0 ? rowFirst[cur]! : atDay;
+      if (cur >= 0) emit(cur, -L.quantity[cur]!, rowFlags[cur]!, first, atMs, atDay);
       emit(r, q, f, first, atMs, atDay);
-      if (slot === undefined) {
-        this.slotRow = grow(this.slotRow, this.slots + 1);
-        this.slotRow[this.slots] = r;
-        slotOf.set(h, this.slots++);
-      } else this.slotRow[slot] = r;
+      current.set(h, r);
       rowFlags[r] = f;
       rowFirst[r] = first;
       if (q > 0) {
