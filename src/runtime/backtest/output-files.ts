@@ -1,26 +1,35 @@
 import { closeSync, openSync, writeFileSync, writeSync } from 'node:fs';
 
-/** An NDJSON file written line by line, buffered, synchronously (ordering and bytes are exactly as written). */
+/**
+ * An NDJSON file written line by line, buffered, synchronously (ordering and bytes are exactly as written). Lines
+ * are encoded straight into one reused byte buffer: joining them into a text first cost as much as writing them
+ * (a backtest of 100k series writes tens of gigabytes of plans).
+ */
 export class NdjsonFile {
   private readonly fd: number;
-  private buffer: string[] = [];
-  private size = 0;
+  private readonly bytes = Buffer.allocUnsafe(1 << 20);
+  private used = 0;
 
   constructor(file: string) {
     this.fd = openSync(file, 'w');
   }
 
   write(line: string): void {
-    this.buffer.push(line);
-    this.size += line.length + 1;
-    if (this.size > 1_048_576) this.flush();
+    // A UTF-16 code unit takes at most 3 bytes in UTF-8 (a surrogate pair, two units, takes 4).
+    const most = 3 * line.length + 1;
+    if (this.used + most > this.bytes.length) this.flush();
+    if (most > this.bytes.length) {
+      writeSync(this.fd, `${line}\n`);
+      return;
+    }
+    this.used += this.bytes.write(line, this.used, 'utf8');
+    this.bytes[this.used++] = 10;
   }
 
   flush(): void {
-    if (this.buffer.length === 0) return;
-    writeSync(this.fd, `${this.buffer.join('\n')}\n`);
-    this.buffer = [];
-    this.size = 0;
+    let at = 0;
+    while (at < this.used) at += writeSync(this.fd, this.bytes, at, this.used - at);
+    this.used = 0;
   }
 
   close(): void {
