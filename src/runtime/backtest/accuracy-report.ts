@@ -1,6 +1,6 @@
 import type { Plan } from '../../contracts/plan.ts';
 import { addDays } from '../local-day.ts';
-import { bias, fva, wape } from '../../accuracy/measures.ts';
+import { addError, biasOf, emptyErrorSums, fva, wapeOf, type ErrorSums } from '../../accuracy/measures.ts';
 
 // Backtest self-check: every plan published for a week, at every lead, scored against that week's actual, next to
 // the baseline known at the same lead. A week's actual is the lead-0 actual-to-date of the last plan published for
@@ -12,7 +12,7 @@ export interface Score {
   readonly bias: number | null;
 }
 
-const score = (forecast: number[], actual: number[]): Score => ({ wape: wape(forecast, actual), bias: bias(forecast, actual) });
+const score = (sums: ErrorSums): Score => ({ wape: wapeOf(sums), bias: biasOf(sums) });
 
 interface Pending {
   lead: number;
@@ -26,6 +26,12 @@ interface WeekActual {
   planDate: string;
   revision: number;
   value: number;
+}
+
+/** What a series has been promised for one week: the plans at every lead, and the week's actual so far. */
+interface SeriesWeek {
+  readonly pending: Pending[];
+  actual?: WeekActual;
 }
 
 export interface LeadAccuracy {
@@ -47,27 +53,32 @@ export interface AccuracyReport {
   readonly locations: readonly { readonly location: string; readonly leads: readonly LeadAccuracy[] }[];
 }
 
-type Cell = { actual: number[]; adjusted: number[]; baseline: number[]; weeks: Set<string>; series: Set<string>; missing: number };
+// Running sums, not the pairs themselves: a backtest of 100k series scores tens of millions of pairs.
+type Cell = { adjusted: ErrorSums; baseline: ErrorSums; pairs: number; weeks: Set<string>; seriesWeeks: number; missing: number };
 
 export class AccuracyReporter {
-  private readonly pending = new Map<string, Pending[]>();
-  private readonly actuals = new Map<string, WeekActual>();
+  /** Per location, the weeks not scored yet (by week start), each with its series. */
+  private readonly pending = new Map<string, Map<string, Map<string, SeriesWeek>>>();
   private readonly latestPlanDate = new Map<string, string>();
   private readonly cells = new Map<string, Map<number, Cell>>();
 
   add(plan: Plan): void {
+    let weeks = this.pending.get(plan.location);
+    if (!weeks) this.pending.set(plan.location, (weeks = new Map()));
     for (const lead of plan.leads) {
-      const key = `${plan.location}|${plan.item}|${lead.weekStart}`;
-      let list = this.pending.get(key);
-      if (!list) this.pending.set(key, (list = []));
+      let items = weeks.get(lead.weekStart);
+      if (!items) weeks.set(lead.weekStart, (items = new Map()));
+      let week = items.get(plan.item);
+      if (!week) items.set(plan.item, (week = { pending: [] }));
+      const list = week.pending;
       const i = list.findIndex((p) => p.lead === lead.lead && p.planDate === plan.planDate);
       const entry = { lead: lead.lead, planDate: plan.planDate, revision: plan.revision, adjusted: lead.adjusted, baseline: lead.baseline };
       if (i < 0) list.push(entry);
       else if (list[i]!.revision < plan.revision) list[i] = entry;
       if (lead.lead === 0) {
-        const a = this.actuals.get(key);
+        const a = week.actual;
         if (!a || a.planDate < plan.planDate || (a.planDate === plan.planDate && a.revision < plan.revision)) {
-          this.actuals.set(key, { planDate: plan.planDate, revision: plan.revision, value: lead.actualToDate });
+          week.actual = { planDate: plan.planDate, revision: plan.revision, value: lead.actualToDate };
         }
       }
     }
@@ -80,30 +91,38 @@ export class AccuracyReporter {
 
   /** Scores every pending week of `location` that ended before `planDate`. */
   private scoreCompleted(location: string, planDate: string): void {
-    for (const [key, list] of this.pending) {
-      const [loc, item, week] = key.split('|') as [string, string, string];
-      if (loc !== location || addDays(week, 7) > planDate) continue;
-      const actual = this.actuals.get(key);
-      if (actual) for (const p of list) this.cell(loc, p.lead, week, item, p, actual.value);
-      this.pending.delete(key);
-      this.actuals.delete(key);
+    const weeks = this.pending.get(location)!;
+    for (const [week, items] of weeks) {
+      if (addDays(week, 7) > planDate) continue;
+      for (const { pending, actual } of items.values()) {
+        if (!actual) continue;
+        for (const p of pending) this.cell(location, p, week, actual.value);
+        // A series-week counts once per lead it was scored at.
+        const leads = new Set(pending.filter((p) => p.baseline !== null).map((p) => p.lead));
+        for (const lead of leads) this.cellOf(location, lead).seriesWeeks++;
+      }
+      weeks.delete(week);
     }
   }
 
-  private cell(location: string, lead: number, week: string, item: string, p: Pending, actual: number): void {
+  private cellOf(location: string, lead: number): Cell {
     let byLead = this.cells.get(location);
     if (!byLead) this.cells.set(location, (byLead = new Map()));
     let c = byLead.get(lead);
-    if (!c) byLead.set(lead, (c = { actual: [], adjusted: [], baseline: [], weeks: new Set(), series: new Set(), missing: 0 }));
+    if (!c) byLead.set(lead, (c = { adjusted: emptyErrorSums(), baseline: emptyErrorSums(), pairs: 0, weeks: new Set(), seriesWeeks: 0, missing: 0 }));
+    return c;
+  }
+
+  private cell(location: string, p: Pending, week: string, actual: number): void {
+    const c = this.cellOf(location, p.lead);
     if (p.baseline === null) {
       c.missing++;
       return;
     }
-    c.actual.push(actual);
-    c.adjusted.push(p.adjusted);
-    c.baseline.push(p.baseline);
+    addError(c.adjusted, p.adjusted, actual);
+    addError(c.baseline, p.baseline, actual);
+    c.pairs++;
     c.weeks.add(week);
-    c.series.add(`${item}|${week}`);
   }
 
   report(): AccuracyReport {
@@ -111,13 +130,13 @@ export class AccuracyReporter {
       const byLead = this.cells.get(location)!;
       const leads = [...byLead.keys()].sort((a, b) => a - b).map((lead): LeadAccuracy => {
         const c = byLead.get(lead)!;
-        const baseline = score(c.baseline, c.actual);
-        const adjusted = score(c.adjusted, c.actual);
+        const baseline = score(c.baseline);
+        const adjusted = score(c.adjusted);
         return {
           lead,
           weeksScored: c.weeks.size,
-          seriesWeeks: c.series.size,
-          pairs: c.actual.length,
+          seriesWeeks: c.seriesWeeks,
+          pairs: c.pairs,
           pairsWithoutBaseline: c.missing,
           baseline,
           adjusted,
