@@ -23,4 +23,27 @@ describe('the clock records', () => {
     expect(due.map((r) => r.arrivalMs)).toEqual([...due.map((r) => r.arrivalMs)].sort((a, b) => a - b));
     expect(clockRecordsDue(Date.parse('2026-03-03T01:00:00Z'), locations, cursors, DEFAULT_STAGE_SETTINGS)).toEqual([]);
   });
+
+  it('takes a changed deadline from the next record on, even after a cursor was already asked about the old one', () => {
+    const cursors = new Map([['DC-NORTH', startCursor(loc, Date.parse('2026-03-02T09:00:00Z'), DEFAULT_STAGE_SETTINGS)]]);
+    const deadlines = (locations: Map<string, Location>, at: string) =>
+      clockRecordsDue(Date.parse(at), locations, cursors, DEFAULT_STAGE_SETTINGS).filter((r) => r.kind === 'deadline-close');
+    expect(deadlines(new Map([['DC-NORTH', loc]]), '2026-03-03T00:30:00Z')).toEqual([]);
+    // The location now closes its day at 04:00 local (03:00Z): 01:00Z passes without a deadline close.
+    const later = new Map([['DC-NORTH', { ...loc, dayCloseDeadline: '04:00' } as Location]]);
+    expect(deadlines(later, '2026-03-03T02:30:00Z')).toEqual([]);
+    expect(deadlines(later, '2026-03-03T03:00:00Z')).toMatchObject([{ record: { date: '2026-03-02', deadlineMs: Date.parse('2026-03-03T03:00:00Z') } }]);
+  });
+
+  it('follows the time zone change of daylight saving time from one deadline to the next', () => {
+    // Europe/Berlin moves to summer time on Sunday 2026-03-29: the 02:00 deadline of Saturday 28 is 01:00Z (CET), of
+    // Sunday 29 (on Monday 30) 00:00Z (CEST).
+    const cursors = new Map([['DC-NORTH', startCursor(loc, Date.parse('2026-03-28T09:00:00Z'), DEFAULT_STAGE_SETTINGS)]]);
+    const locations = new Map([['DC-NORTH', loc]]);
+    const due = clockRecordsDue(Date.parse('2026-03-30T00:00:00Z'), locations, cursors, DEFAULT_STAGE_SETTINGS).filter((r) => r.kind === 'deadline-close');
+    expect(due.map((r) => [r.record.date, new Date(r.arrivalMs).toISOString()])).toEqual([
+      ['2026-03-28', '2026-03-29T01:00:00.000Z'],
+      ['2026-03-29', '2026-03-30T00:00:00.000Z'],
+    ]);
+  });
 });
